@@ -209,7 +209,7 @@ export interface SolveOptions {
   waveformPoints?: number;
   /** Integrator steps per period. Default chosen by the solver. */
   stepsPerPeriod?: number;
-  /** Shooting tolerance on the capacitor state, volts. Default 1e-7 × scale. */
+  /** Shooting tolerance on the capacitor state, volts. Default 1e-6 × the secondary peak (at least 1 µV). */
   toleranceVolts?: number;
   /** Most shooting iterations. Default 40. */
   maxIterations?: number;

@@ -1,0 +1,178 @@
+/**
+ * The supply engine: for a named supply, what every reading should be.
+ *
+ * Pure TypeScript, no DOM, no I/O: the worker, the CLI and the tests call it alike.
+ */
+import { buildCircuit } from './circuit';
+import { estimateSupply } from './estimates';
+import { measurePeriod, sampleWaveform } from './measures';
+import { parseSupplySpec } from './spec';
+import { solveSteadyState } from './steady-state';
+import type { SolveOptions, SupplyEstimates, SupplyResult, SupplySpec } from './types';
+
+export * from './types';
+export { parseSupplySpec, SpecError, diodeLabels, DIODE_PRESETS } from './spec';
+export { estimateSupply } from './estimates';
+
+/**
+ * Grid rules (our accuracy rules, checked against ngspice in test/engine/ngspice.test.ts):
+ * - an unfiltered supply has no state to shoot for; a uniform grid of UNFILTERED_STEPS;
+ * - a filtered one is first solved on a coarse uniform grid of COARSE_STEPS, then on a grid
+ *   that keeps the coarse steps where every diode is off (the capacitor discharges smoothly
+ *   into the load) and splits the steps where a diode conducts so that the narrowest
+ *   conduction pulse gets at least POINTS_PER_PULSE points.
+ */
+const UNFILTERED_STEPS = 256;
+const COARSE_STEPS = 64;
+const POINTS_PER_PULSE = 40;
+const MAX_STEPS = 4096;
+/** A diode counts as conducting above this fraction of its own peak current. */
+const CONDUCTING_FRACTION = 0.005;
+
+/**
+ * Initial guess for the capacitor voltages at t = 0 (a zero crossing of the source) from the
+ * textbook estimate: full-wave capacitors are then halfway through their discharge (near the
+ * mean), a half-wave one three quarters of the way; each doubler capacitor holds half the output.
+ */
+function initialGuess(spec: SupplySpec, est: SupplyEstimates): number[] {
+  if (spec.topology === 'doubler') return [est.dc / 2, est.dc / 2];
+  const v = spec.topology === 'half-wave' ? est.dc - est.ripplePp / 4 : est.dc;
+  return spec.capacitors.map(() => Math.max(v, 0));
+}
+
+function uniformSteps(count: number, periodSeconds: number): Float64Array {
+  return new Float64Array(count).fill(periodSeconds / count);
+}
+
+/**
+ * The refined grid: coarse steps where no diode conducts, split steps where one does.
+ * @param iDiode  diode currents on the coarse grid (N+1 points each)
+ * @param coarse  the coarse step lengths (N)
+ */
+function conductionSteps(iDiode: Float64Array[], coarse: Float64Array): Float64Array {
+  const N = coarse.length;
+  const active = new Uint8Array(N);
+  for (const cur of iDiode) {
+    let peak = 0;
+    for (let n = 0; n <= N; n++) peak = Math.max(peak, cur[n]!);
+    if (!(peak > 1e-9)) continue;
+    const thr = CONDUCTING_FRACTION * peak;
+    for (let n = 0; n < N; n++) if (cur[n]! > thr || cur[n + 1]! > thr) active[n] = 1;
+  }
+  // Widen each conducting run by one step on each side: turn-on and turn-off fall inside.
+  const widened = new Uint8Array(N);
+  for (let n = 0; n < N; n++) {
+    if (active[n] || active[(n + 1) % N] || active[(n + N - 1) % N]) widened[n] = 1;
+  }
+  let activeCount = 0;
+  for (let n = 0; n < N; n++) activeCount += widened[n]!;
+  if (activeCount === 0 || activeCount === N) {
+    // Nothing conducts (a dead supply) or something always does: a uniform grid.
+    const count = activeCount === 0 ? N : Math.min(MAX_STEPS, Math.max(UNFILTERED_STEPS, N));
+    return uniformSteps(count, coarse.reduce((a, b) => a + b, 0));
+  }
+  // Narrowest run of widened steps, circularly.
+  let first = 0;
+  while (widened[first]) first++;
+  let narrowest = N;
+  let run = 0;
+  for (let j = 1; j <= N; j++) {
+    const on = widened[(first + j) % N] === 1;
+    if (on) run++;
+    else if (run > 0) {
+      narrowest = Math.min(narrowest, run);
+      run = 0;
+    }
+  }
+  let split = Math.ceil(POINTS_PER_PULSE / narrowest);
+  const inactive = N - activeCount;
+  split = Math.max(1, Math.min(split, Math.floor((MAX_STEPS - inactive) / activeCount)));
+  const steps = new Float64Array(inactive + activeCount * split);
+  let p = 0;
+  for (let n = 0; n < N; n++) {
+    const h = coarse[n]!;
+    if (widened[n]) for (let q = 0; q < split; q++) steps[p++] = h / split;
+    else steps[p++] = h;
+  }
+  return steps;
+}
+
+function finiteOrZero(x: number): number {
+  return Number.isFinite(x) ? x : 0;
+}
+
+/**
+ * Solves a normalised supply for its periodic steady state and reads off every figure.
+ * @param spec     from `parseSupplySpec`
+ * @param options  waveform samples, step count, tolerance
+ * @returns finite figures; `converged` false when the solver could not settle (figures are then
+ *          those of the last period computed, and any non-finite figure is reported as 0)
+ */
+export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): SupplyResult {
+  const circuit = buildCircuit(spec);
+  const periodSeconds = 1 / spec.source.hz;
+  const vm = Math.SQRT2 * spec.source.vrms;
+  const toleranceVolts = options.toleranceVolts ?? 1e-6 * Math.max(vm, 1);
+  const maxIterations = options.maxIterations ?? 40;
+  const filtered = circuit.capacitors.length > 0;
+  const estimates = estimateSupply(spec);
+  let steps = uniformSteps(options.stepsPerPeriod ?? (filtered ? COARSE_STEPS : UNFILTERED_STEPS), periodSeconds);
+  let sol = solveSteadyState(circuit, {
+    steps,
+    // The coarse pass only has to find where the diodes conduct.
+    toleranceVolts: options.stepsPerPeriod === undefined && filtered ? 1e3 * toleranceVolts : toleranceVolts,
+    maxIterations,
+    initialCapacitorVolts: initialGuess(spec, estimates),
+    acceptSmallCorrection: options.stepsPerPeriod === undefined,
+  });
+  let meas = measurePeriod(circuit, sol);
+  let iterations = sol.iterations;
+  let coarseOk = sol.converged && sol.stepsConverged;
+  if (options.stepsPerPeriod === undefined && filtered) {
+    steps = conductionSteps(meas.series.iDiode, steps);
+    const k = circuit.capacitors.length;
+    const refined = solveSteadyState(circuit, {
+      steps,
+      toleranceVolts,
+      maxIterations,
+      initialCapacitorVolts: Array.from(sol.startState.subarray(0, k)),
+      predictor: { times: sol.times, nodeVolts: sol.nodeVolts },
+    });
+    iterations += refined.iterations;
+    coarseOk = true;
+    sol = refined;
+    meas = measurePeriod(circuit, sol);
+  }
+  const figures = [meas.dc, meas.ripplePp, meas.rippleRms, meas.diodePeakA, meas.diodePiv, meas.secondaryRms];
+  const allFinite = figures.every(Number.isFinite);
+  const result: SupplyResult = {
+    converged: coarseOk && sol.converged && sol.stepsConverged && allFinite,
+    iterations,
+    residualVolts: finiteOrZero(sol.residualVolts),
+    stepsPerPeriod: sol.stepsPerPeriod,
+    dc: finiteOrZero(meas.dc),
+    ripplePp: finiteOrZero(meas.ripplePp),
+    rippleRms: finiteOrZero(meas.rippleRms),
+    rippleHz: finiteOrZero(meas.rippleHz),
+    diodePeakA: finiteOrZero(meas.diodePeakA),
+    diodePiv: finiteOrZero(meas.diodePiv),
+    secondaryRms: finiteOrZero(meas.secondaryRms),
+    secondaryRmsAmps: finiteOrZero(meas.secondaryRmsAmps),
+    loadAmps: finiteOrZero(meas.loadAmps),
+    diodes: meas.diodes,
+    regulator: meas.regulator,
+    estimates,
+  };
+  if (options.waveformPoints !== undefined && options.waveformPoints > 0) {
+    result.waveform = sampleWaveform(meas.series, sol.times, options.waveformPoints);
+  }
+  return result;
+}
+
+/**
+ * Parses a spec as sent by a caller (JSON) and solves it.
+ * @throws SpecError naming the field when the input is not a valid supply
+ */
+export function expectReadings(input: unknown, options: SolveOptions = {}): SupplyResult {
+  return solveSupply(parseSupplySpec(input), options);
+}
