@@ -5,7 +5,7 @@ export default defineConfig({
   plugins: [preact()],
   build: {
     target: 'es2022',
-    // The engine is a lazy chunk; keep the entry small enough to read on a phone over nothing.
+    // Maps let a stack trace from a technician's phone be read against the source.
     sourcemap: true,
   },
   preview: {
