@@ -95,7 +95,7 @@ export interface Circuit {
 function junctionOf(spec: SupplySpec): Junction {
   const d = spec.diode;
   if (d.kind === 'shockley') {
-    // n·Vt with Vt = kT/q (DOMAIN.md §2: 25.85 mV at 25 °C).
+    // n·Vt with Vt = kT/q: 25.69 mV at 25 °C (DOMAIN.md §2's 25.85 mV is the 300 K figure).
     const thermalVolts = d.emission * thermalVoltage(spec.temperatureC);
     return {
       kind: 'shockley',

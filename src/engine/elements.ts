@@ -52,27 +52,36 @@ export function evalJunction(j: Junction, volts: number, guessVj: number, out: F
   if (volts <= 0) {
     // Reverse or zero bias: the current is at most Is in size, so the drop R·I (below a
     // nanovolt for any rectifier) is neglected and the junction takes the whole voltage.
+    if (volts < -40 * a) {
+      // exp(−40) ≈ 4e-18: the current is −Is to double precision, its slope nil.
+      out[0] = -is;
+      out[1] = 0;
+      return volts;
+    }
     const e = Math.exp(volts / a);
     const gj = (is * e) / a;
     out[0] = is * (e - 1);
     out[1] = gj / (1 + r * gj);
     return volts;
   }
-  const upper = Math.min(volts, a * Math.log1p(volts / (r * is)));
-  // Newton from the warm start when there is one: from below the root the first step lands
-  // above it (convexity) and is clamped to the upper bound; from above it converges
-  // monotonically. Either way the iterates stay finite.
-  let vj = guessVj > 0 && guessVj < upper ? guessVj : upper;
+  // Newton from the warm start when there is one (0 < guess < V), else from the bound
+  // nVt·ln(1 + V/(R·Is)). From below the root the first step lands above it (convexity); a
+  // long step up is clamped to the bound, so the iterates never run up the exponential.
+  const rIs = r * is;
+  let vj = guessVj > 0 && guessVj < volts ? guessVj : Math.min(volts, a * Math.log1p(volts / rIs));
+  let e = 0;
   for (let k = 0; k < 60; k++) {
-    const e = Math.exp(vj / a);
-    const g = vj + r * is * (e - 1) - volts;
-    const dg = 1 + (r * is * e) / a;
-    const step = g / dg;
+    e = Math.exp(vj / a);
+    const step = (vj + rIs * (e - 1) - volts) / (1 + (rIs * e) / a);
     vj -= step;
-    if (vj > upper) vj = upper;
-    if (Math.abs(step) <= 1e-10) break;
+    if (Math.abs(step) <= 1e-7) {
+      // Quadratic convergence: the error left is about step²/(2·nVt) < 1e-12 V. Carry the
+      // exponential to the new point to first order instead of evaluating it again.
+      e *= 1 - step / a;
+      break;
+    }
+    if (step < -4 * a) vj = Math.min(vj, volts, a * Math.log1p(volts / rIs));
   }
-  const e = Math.exp(vj / a);
   // Large currents from the resistor's drop (better conditioned), small from the exponential.
   const i = volts - vj > 1e-3 * a ? (volts - vj) / r : is * (e - 1);
   const gj = (is * e) / a;

@@ -24,7 +24,7 @@ export { estimateSupply } from './estimates';
  */
 const UNFILTERED_STEPS = 256;
 const COARSE_STEPS = 64;
-const POINTS_PER_PULSE = 40;
+const POINTS_PER_PULSE = 64;
 const MAX_STEPS = 4096;
 /** A diode counts as conducting above this fraction of its own peak current. */
 const CONDUCTING_FRACTION = 0.005;
@@ -87,14 +87,41 @@ function conductionSteps(iDiode: Float64Array[], coarse: Float64Array): Float64A
   let split = Math.ceil(POINTS_PER_PULSE / narrowest);
   const inactive = N - activeCount;
   split = Math.max(1, Math.min(split, Math.floor((MAX_STEPS - inactive) / activeCount)));
-  const steps = new Float64Array(inactive + activeCount * split);
-  let p = 0;
+  const steps: number[] = [];
   for (let n = 0; n < N; n++) {
     const h = coarse[n]!;
-    if (widened[n]) for (let q = 0; q < split; q++) steps[p++] = h / split;
-    else steps[p++] = h;
+    if (widened[n]) for (let q = 0; q < split; q++) steps.push(h / split);
+    else steps.push(h);
   }
-  return steps;
+  return gradeSteps(steps, MAX_STEP_RATIO);
+}
+
+/**
+ * Variable-step BDF2 is zero-stable only while each step is less than 1 + √2 times the one
+ * before (Grigorieff's bound; Hairer & Wanner, Solving ODEs II, §III.5): we keep every ratio
+ * between neighbours (circularly) at most 2 by halving the larger step until it fits.
+ */
+const MAX_STEP_RATIO = 2;
+
+function gradeSteps(input: number[], maxRatio: number): Float64Array {
+  let steps = input;
+  for (let pass = 0; pass < 64; pass++) {
+    const n = steps.length;
+    let changed = false;
+    const next: number[] = [];
+    for (let i = 0; i < n; i++) {
+      const h = steps[i]!;
+      const before = steps[(i + n - 1) % n]!;
+      const after = steps[(i + 1) % n]!;
+      if (h > maxRatio * before || h > maxRatio * after) {
+        next.push(h / 2, h / 2);
+        changed = true;
+      } else next.push(h);
+    }
+    steps = next;
+    if (!changed) break;
+  }
+  return Float64Array.from(steps);
 }
 
 function finiteOrZero(x: number): number {
@@ -112,7 +139,10 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
   const circuit = buildCircuit(spec);
   const periodSeconds = 1 / spec.source.hz;
   const vm = Math.SQRT2 * spec.source.vrms;
-  const toleranceVolts = options.toleranceVolts ?? 1e-6 * Math.max(vm, 1);
+  // Periodicity tolerance: the state may differ by this much after one period. The figures then
+  // carry an error of the same order, 1e-4 of the peak by default: far below the grid's own
+  // discretisation error (a few 1e-3 at most) and the meters' accuracy.
+  const toleranceVolts = options.toleranceVolts ?? 1e-4 * Math.max(vm, 1);
   const maxIterations = options.maxIterations ?? 40;
   const filtered = circuit.capacitors.length > 0;
   const estimates = estimateSupply(spec);
@@ -120,7 +150,7 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
   let sol = solveSteadyState(circuit, {
     steps,
     // The coarse pass only has to find where the diodes conduct.
-    toleranceVolts: options.stepsPerPeriod === undefined && filtered ? 1e3 * toleranceVolts : toleranceVolts,
+    toleranceVolts: options.stepsPerPeriod === undefined && filtered ? Math.max(toleranceVolts, 1e-3 * Math.max(vm, 1)) : toleranceVolts,
     maxIterations,
     initialCapacitorVolts: initialGuess(spec, estimates),
     acceptSmallCorrection: options.stepsPerPeriod === undefined,

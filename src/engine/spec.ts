@@ -451,7 +451,8 @@ const atLeast = (limit: number, problem: string): NumberCheck => ({ fails: (v) =
 const VRMS_RULE: NumberRule = {
   unit: 'volts',
   checks: [
-    { fails: (v) => !(v > 0), problem: 'must be above 0 V (a dead secondary needs no calculation)' },
+    // 0 V is allowed: "what should I read with no AC?" is a real question (the no-AC fault).
+    { fails: (v) => !(v >= 0), problem: 'must be 0 V or more' },
     atMost(100e3, 'is above 100 kV, far beyond the supplies this tool covers'),
   ],
 };

@@ -3,15 +3,19 @@
  *
  * Method (standard circuit-simulation practice; see e.g. Kundert, White & Sangiovanni-Vincentelli,
  * "Steady-State Methods for Simulating Analog and Microwave Circuits", 1990, on shooting-Newton):
- * - Each time step is the trapezoidal rule for the capacitors (companion model: a conductance
- *   and a history current, with the ESR folded into the branch) and Newton's method on the
- *   nodal equations with the nonlinear element laws of elements.ts.
- * - The state at the start of a period is every capacitor's voltage and current (the
- *   trapezoidal rule carries both). One period of integration maps a start state s to Φ(s).
+ * - Each time step is the second-order backward differentiation formula (BDF2, "Gear-2", with
+ *   variable steps) for the capacitors — a companion conductance and a history current, the
+ *   ESR folded into the branch — and Newton's method on the nodal equations with the nonlinear
+ *   element laws of elements.ts. BDF2 rather than the trapezoidal rule because it is L-stable:
+ *   a capacitor charged through milliohms from a stiff source would make the trapezoidal rule
+ *   ring from step to step (the classic trapezoidal ringing), inflating the diode currents.
+ * - The state at the start of a period is every capacitor's voltage at the last two grid points
+ *   (BDF2 looks two points back). One period of integration maps a start state s to Φ(s).
  *   Alongside it we carry the sensitivity matrix M = dΦ/ds by the chain rule through each
  *   step's converged Newton Jacobian (implicit function theorem), then take a Newton step on
- *   Φ(s) − s = 0. A few periods reach a steady state that plain time stepping would need
- *   hundreds of periods (many load time constants) to approach.
+ *   Φ(s) − s = 0, damped by a backtracking line search on the residual. A few periods reach a
+ *   steady state that plain time stepping would need hundreds of periods (many load time
+ *   constants) to approach.
  *
  * No timers, no I/O, no allocation inside the step loop.
  */
@@ -57,7 +61,7 @@ export interface SteadyStateSolution {
   nodeVolts: Float64Array;
   /** Capacitor branch voltages (internal, without ESR) at the N+1 points, [(N+1) × caps]. */
   capacitorVolts: Float64Array;
-  /** Start state of the final period, [vC..., iC...]. */
+  /** Start state of the final period: [vC at t = 0 ..., vC one step before t = 0 ...]. */
   startState: Float64Array;
   /** False when some time step's Newton iteration failed even after step halving. */
   stepsConverged: boolean;
@@ -85,6 +89,11 @@ class Stepper {
   /** Per-capacitor companion conductance and history current for the current step. */
   readonly geq: Float64Array;
   readonly hist: Float64Array;
+  readonly gc: Float64Array;
+  readonly hc: Float64Array;
+  /** d(Hc)/d(v_n) and −d(Hc)/d(v_{n−1}) of the current step: α1·C/h and α2·C/h. */
+  readonly a1ch: Float64Array;
+  readonly a2ch: Float64Array;
   /** Sensitivity columns J⁻¹·(e_plus − e_minus), [k × m]. */
   readonly sens: Float64Array;
   readonly omega: number;
@@ -100,6 +109,10 @@ class Stepper {
     this.vj = new Float64Array(c.diodes.length).fill(Number.NaN);
     this.geq = new Float64Array(this.k);
     this.hist = new Float64Array(this.k);
+    this.gc = new Float64Array(this.k);
+    this.hc = new Float64Array(this.k);
+    this.a1ch = new Float64Array(this.k);
+    this.a2ch = new Float64Array(this.k);
     this.sens = new Float64Array(this.k * this.m);
     this.omega = 2 * Math.PI * c.hz;
   }
@@ -222,26 +235,43 @@ class Stepper {
     return false;
   }
 
-  /** Sets the capacitor companions for a step of h seconds from state s = [vC..., iC...]. */
-  setCompanions(h: number, s: Float64Array): void {
+  /**
+   * Sets the capacitor companions for a step of h seconds that follows a step of hPrev seconds,
+   * from state s = [vC_n..., vC_{n−1}...]. Variable-step BDF2 (Gear-2) for i = C·dv/dt:
+   *   i_{n+1} = (C/h)·(α0·v_{n+1} − α1·v_n + α2·v_{n−1}), ω = h/hPrev,
+   *   α0 = (1 + 2ω)/(1 + ω), α1 = 1 + ω, α2 = ω²/(1 + ω)
+   * (standard variable-coefficient form; e.g. Hairer & Wanner, Solving ODEs II, §III.5).
+   * With the ESR r in series: i = Geq·v_branch − hist, Geq = 1/(r + 1/Gc), Gc = α0·C/h,
+   * hist = Geq·Hc/Gc, Hc = (C/h)·(α1·v_n − α2·v_{n−1}).
+   */
+  setCompanions(h: number, hPrev: number, s: Float64Array): void {
+    const w = h / hPrev;
+    const a0 = (1 + 2 * w) / (1 + w);
+    const a1 = 1 + w;
+    const a2 = (w * w) / (1 + w);
     for (let q = 0; q < this.k; q++) {
       const cap = this.c.capacitors[q]!;
-      const hc = h / (2 * cap.farads);
-      const geq = 1 / (cap.esrOhms + hc);
+      const ch = cap.farads / h;
+      const gc = a0 * ch;
+      const geq = 1 / (cap.esrOhms + 1 / gc);
+      const hc = ch * (a1 * s[q]! - a2 * s[this.k + q]!);
+      this.gc[q] = gc;
+      this.hc[q] = hc;
       this.geq[q] = geq;
-      this.hist[q] = geq * (s[q]! + hc * s[this.k + q]!);
+      this.hist[q] = (geq * hc) / gc;
+      this.a1ch[q] = a1 * ch;
+      this.a2ch[q] = a2 * ch;
     }
   }
 
-  /** Capacitor branch currents after a converged step, written into s (vC and iC updated). */
-  advanceState(h: number, s: Float64Array): void {
+  /** After a converged step: the new capacitor voltages, shifting the state one point on. */
+  advanceState(s: Float64Array): void {
     for (let q = 0; q < this.k; q++) {
       const cap = this.c.capacitors[q]!;
-      const hc = h / (2 * cap.farads);
       const vb = this.volt(this.v, cap.plus) - this.volt(this.v, cap.minus);
-      const iNew = this.geq[q]! * vb - this.hist[q]!;
-      s[q] = s[q]! + hc * (s[this.k + q]! + iNew);
-      s[this.k + q] = iNew;
+      const i = this.geq[q]! * vb - this.hist[q]!;
+      s[this.k + q] = s[q]!;
+      s[q] = (i + this.hc[q]!) / this.gc[q]!;
     }
   }
 }
@@ -270,49 +300,53 @@ function regulatorInputCurrent(
 }
 
 /**
- * One step of h seconds from time t with start state s (updated in place), splitting the step
- * in halves when Newton fails. The sensitivity matrix `stepJac` (2k × 2k, row-major) receives
- * d(state after)/d(state before) when non-null.
+ * One step of h seconds from time t (the step before it was hPrev seconds) with state s
+ * (updated in place), splitting the step in halves when Newton fails. The sensitivity matrix
+ * `stepJac` (2k × 2k, row-major) receives d(state after)/d(state before) when non-null.
  */
-function step(st: Stepper, t: number, h: number, s: Float64Array, depth: number, stepJac: Float64Array | null): boolean {
-  const m = st.m;
+function step(
+  st: Stepper,
+  t: number,
+  h: number,
+  hPrev: number,
+  s: Float64Array,
+  depth: number,
+  stepJac: Float64Array | null,
+): boolean {
   const k = st.k;
   const saved = st.vTry;
   saved.set(st.v);
-  st.setCompanions(h, s);
+  st.setCompanions(h, hPrev, s);
   if (st.newton(t + h)) {
-    if (stepJac !== null) stepSensitivity(st, h, stepJac);
-    st.advanceState(h, s);
+    if (stepJac !== null) stepSensitivity(st, stepJac);
+    st.advanceState(s);
     return true;
   }
   if (depth >= SUBDIVISION_DEPTH) return false;
-  // Retry as two half steps from the saved node voltages.
+  // Retry as two half steps from the saved node voltages. (The state's older point then sits
+  // hPrev back from the first half and h/2 back from the second; BDF2 takes any spacing.)
   st.v.set(saved);
   const half = h / 2;
   const s0 = s.slice();
   const j1 = stepJac === null ? null : new Float64Array(4 * k * k);
   const j2 = stepJac === null ? null : new Float64Array(4 * k * k);
-  if (!step(st, t, half, s, depth + 1, j1)) {
-    s.set(s0);
-    return false;
-  }
-  if (!step(st, t + half, half, s, depth + 1, j2)) {
+  if (!step(st, t, half, hPrev, s, depth + 1, j1) || !step(st, t + half, half, half, s, depth + 1, j2)) {
     s.set(s0);
     return false;
   }
   if (stepJac !== null && j1 !== null && j2 !== null) matMul(j2, j1, stepJac, 2 * k);
-  void m;
   return true;
 }
 
 /**
  * d(state after the step)/d(state before) from the converged step's Jacobian factors.
- * State order [vC_0..vC_{k−1}, iC_0..iC_{k−1}]. See the module comment for the chain rule.
+ * State order [vC_n (k), vC_{n−1} (k)] before, [vC_{n+1}, vC_n] after. The history currents
+ * depend on the state; the node voltages on the history currents through J⁻¹.
  */
-function stepSensitivity(st: Stepper, h: number, out: Float64Array): void {
+function stepSensitivity(st: Stepper, out: Float64Array): void {
   const { m, k, c } = st;
   const n2 = 2 * k;
-  // Columns X_j = J⁻¹·(e_plus_j − e_minus_j).
+  // Columns X_j = J⁻¹·(e_plus_j − e_minus_j) = d(node volts)/d(hist_j).
   for (let j = 0; j < k; j++) {
     const cap = c.capacitors[j]!;
     const off = j * m;
@@ -324,24 +358,24 @@ function stepSensitivity(st: Stepper, h: number, out: Float64Array): void {
   out.fill(0);
   for (let q = 0; q < k; q++) {
     const cq = c.capacitors[q]!;
-    const hcq = h / (2 * cq.farads);
+    const invGc = 1 / st.gc[q]!;
     for (let j = 0; j < k; j++) {
       const off = j * m;
       const dvb = (cq.plus >= 0 ? st.sens[off + cq.plus]! : 0) - (cq.minus >= 0 ? st.sens[off + cq.minus]! : 0);
-      // d iC'_q / d hist_j
+      // d i_q / d hist_j
       const dI = st.geq[q]! * dvb - (q === j ? 1 : 0);
-      const cj = c.capacitors[j]!;
-      const hcj = h / (2 * cj.farads);
-      // hist_j = geq_j·(vC_j + hc_j·iC_j)
-      const dIdv = dI * st.geq[j]!;
-      const dIdi = dI * st.geq[j]! * hcj;
-      out[(k + q) * n2 + j] = out[(k + q) * n2 + j]! + dIdv;
-      out[(k + q) * n2 + k + j] = out[(k + q) * n2 + k + j]! + dIdi;
-      out[q * n2 + j] = out[q * n2 + j]! + hcq * dIdv;
-      out[q * n2 + k + j] = out[q * n2 + k + j]! + hcq * dIdi;
+      // hist_j = (Geq_j/Gc_j)·Hc_j, Hc_j = a1ch_j·v_n,j − a2ch_j·v_{n−1},j
+      const r = st.geq[j]! / st.gc[j]!;
+      const dIdvn = dI * r * st.a1ch[j]!;
+      const dIdvp = -dI * r * st.a2ch[j]!;
+      // v_{n+1},q = (i_q + Hc_q)/Gc_q
+      out[q * n2 + j] = out[q * n2 + j]! + dIdvn * invGc;
+      out[q * n2 + k + j] = out[q * n2 + k + j]! + dIdvp * invGc;
     }
-    out[q * n2 + q] = out[q * n2 + q]! + 1;
-    out[q * n2 + k + q] = out[q * n2 + k + q]! + hcq;
+    out[q * n2 + q] = out[q * n2 + q]! + st.a1ch[q]! * invGc;
+    out[q * n2 + k + q] = out[q * n2 + k + q]! - st.a2ch[q]! * invGc;
+    // The older point of the new state is the current point of the old one.
+    out[(k + q) * n2 + q] = 1;
   }
 }
 
@@ -378,10 +412,22 @@ function matMul(a: Float64Array, b: Float64Array, c: Float64Array, n: number): v
   }
 }
 
+/** One period integrated from a start state: its end state, sensitivity and trajectory. */
+interface PeriodRun {
+  ok: boolean;
+  start: Float64Array;
+  end: Float64Array;
+  monodromy: Float64Array;
+  nodeVolts: Float64Array;
+  capVolts: Float64Array;
+  /** Largest |Φ(s) − s| over the state, volts. */
+  residual: number;
+}
+
 /**
  * Finds the periodic steady state of a circuit driven at c.hz.
  * @param c     circuit from buildCircuit
- * @param opts  steps per period, tolerance, iteration cap, and a start guess for the capacitors
+ * @param opts  step grid, tolerance, iteration cap, and a start guess for the capacitors
  * @returns the final period's trajectory and convergence facts; never throws for a valid circuit
  */
 export function solveSteadyState(c: Circuit, opts: SteadyStateOptions): SteadyStateSolution {
@@ -392,58 +438,30 @@ export function solveSteadyState(c: Circuit, opts: SteadyStateOptions): SteadySt
   const times = new Float64Array(N + 1);
   for (let n = 0; n < N; n++) times[n + 1] = times[n]! + opts.steps[n]!;
   const n2 = 2 * k;
-  const state = new Float64Array(n2);
-  for (let q = 0; q < k; q++) state[q] = opts.initialCapacitorVolts[q] ?? 0;
-
-  const nodeVolts = new Float64Array((N + 1) * m);
-  const capVolts = new Float64Array((N + 1) * Math.max(k, 1));
-  const monodromy = new Float64Array(n2 * n2);
   const stepJac = new Float64Array(n2 * n2);
   const tmp = new Float64Array(n2 * n2);
-  const start = new Float64Array(n2);
-  const sys = new Float64Array(n2 * n2);
-  const sysPiv = new Int32Array(n2);
-  const delta = new Float64Array(n2);
-  let havePrevious = false;
+  const scale = Math.max(1, ...c.windings.map((w) => w.peakVolts));
 
   // Node voltages to start Newton from in the first period: the predictor trajectory when one
   // is given, else zero (Newton then needs a few more iterations on the first steps).
   let predicted: Float64Array | null = null;
-  if (opts.predictor) {
-    predicted = interpolateTrajectory(opts.predictor.times, opts.predictor.nodeVolts, m, times);
-    st.v.set(predicted.subarray(0, m));
-  } else {
-    st.v.fill(0);
-  }
+  if (opts.predictor) predicted = interpolateTrajectory(opts.predictor.times, opts.predictor.nodeVolts, m, times);
 
-  let iterations = 0;
-  let residual = Infinity;
-  let converged = false;
-  let stepsConverged = true;
-  const maxIterations = k === 0 ? 1 : opts.maxIterations;
-
-  for (let iter = 0; iter < maxIterations; iter++) {
-    iterations = iter + 1;
-    start.set(state);
-    monodromy.fill(0);
+  /** Integrates one period from `start`, predicting each step from `guide` when given. */
+  const runPeriod = (start: Float64Array, guide: Float64Array | null): PeriodRun => {
+    const state = start.slice();
+    const monodromy = new Float64Array(n2 * n2);
     for (let i = 0; i < n2; i++) monodromy[i * n2 + i] = 1;
-    if (havePrevious) {
-      st.v.set(nodeVolts.subarray(0, m));
-    }
-    // Record the start point: node voltages consistent with the start state come from the
-    // previous period's end (or, on the first pass, from the first step's Newton).
+    const nodeVolts = new Float64Array((N + 1) * m);
+    const capVolts = new Float64Array((N + 1) * Math.max(k, 1));
+    if (guide !== null) st.v.set(guide.subarray(0, m));
+    else st.v.fill(0);
     for (let q = 0; q < k; q++) capVolts[q] = state[q]!;
     let ok = true;
     for (let n = 0; n < N; n++) {
-      const t = times[n]!;
-      const h = opts.steps[n]!;
-      if (havePrevious) {
-        // Predictor: the previous period's trajectory at the same instant.
-        for (let i = 0; i < m; i++) st.v[i] = nodeVolts[(n + 1) * m + i]!;
-      } else if (predicted !== null) {
-        for (let i = 0; i < m; i++) st.v[i] = predicted[(n + 1) * m + i]!;
-      }
-      if (!step(st, t, h, state, 0, k > 0 ? stepJac : null)) {
+      if (guide !== null) for (let i = 0; i < m; i++) st.v[i] = guide[(n + 1) * m + i]!;
+      const hPrev = n === 0 ? opts.steps[N - 1]! : opts.steps[n - 1]!;
+      if (!step(st, times[n]!, opts.steps[n]!, hPrev, state, 0, k > 0 ? stepJac : null)) {
         ok = false;
         break;
       }
@@ -454,61 +472,94 @@ export function solveSteadyState(c: Circuit, opts: SteadyStateOptions): SteadySt
       for (let i = 0; i < m; i++) nodeVolts[(n + 1) * m + i] = st.v[i]!;
       for (let q = 0; q < k; q++) capVolts[(n + 1) * k + q] = state[q]!;
     }
-    if (!ok) {
-      stepsConverged = false;
-      break;
-    }
     // Point 0 of the period is the same instant as point N of the periodic solution.
     for (let i = 0; i < m; i++) nodeVolts[i] = nodeVolts[N * m + i]!;
-    havePrevious = true;
-    if (k === 0) {
-      residual = 0;
-      converged = true;
-      break;
-    }
-    residual = 0;
-    for (let q = 0; q < k; q++) residual = Math.max(residual, Math.abs(state[q]! - start[q]!));
-    if (residual <= opts.toleranceVolts) {
-      converged = true;
-      // The recorded period ran from `start`; keep it as the steady-state period.
-      state.set(start);
-      break;
-    }
+    let residual = 0;
+    for (let i = 0; i < n2; i++) residual = Math.max(residual, Math.abs(state[i]! - start[i]!));
+    if (!ok || !Number.isFinite(residual)) residual = Infinity;
+    return { ok, start, end: state, monodromy, nodeVolts, capVolts, residual };
+  };
+
+  const first = new Float64Array(n2);
+  for (let q = 0; q < k; q++) {
+    first[q] = opts.initialCapacitorVolts[q] ?? 0;
+    first[k + q] = first[q]!;
+  }
+  let run = runPeriod(first, predicted);
+  let iterations = 1;
+  let converged = k === 0 ? run.ok : run.residual <= opts.toleranceVolts;
+  const maxIterations = k === 0 ? 1 : opts.maxIterations;
+  // A Newton step never moves a capacitor by more than this (volts): keeps a nearly neutral
+  // period map (a capacitor no diode recharges) from flinging the state far away.
+  const maxMove = 0.5 * scale;
+  const sys = new Float64Array(n2 * n2);
+  const piv = new Int32Array(n2);
+  const delta = new Float64Array(n2);
+
+  while (!converged && iterations < maxIterations && run.ok) {
     // Newton on Φ(s) − s = 0: (M − I)·Δ = −(Φ(s) − s).
     for (let i = 0; i < n2; i++) {
-      for (let j = 0; j < n2; j++) sys[i * n2 + j] = monodromy[i * n2 + j]! - (i === j ? 1 : 0);
-      delta[i] = -(state[i]! - start[i]!);
+      for (let j = 0; j < n2; j++) sys[i * n2 + j] = run.monodromy[i * n2 + j]! - (i === j ? 1 : 0);
+      delta[i] = -(run.end[i]! - run.start[i]!);
     }
-    let next: Float64Array;
-    if (luFactor(sys, n2, sysPiv)) {
-      luSolve(sys, n2, sysPiv, delta);
-      next = new Float64Array(n2);
-      for (let i = 0; i < n2; i++) next[i] = start[i]! + delta[i]!;
-    } else {
-      // Singular sensitivity: fall back to plain time stepping (the end state).
-      next = state.slice();
+    let newtonOk = luFactor(sys, n2, piv);
+    if (newtonOk) {
+      luSolve(sys, n2, piv, delta);
+      for (let i = 0; i < n2; i++) if (!Number.isFinite(delta[i]!)) newtonOk = false;
     }
-    let finite = true;
-    let correction = 0;
-    for (let i = 0; i < n2; i++) if (!Number.isFinite(next[i]!)) finite = false;
-    for (let q = 0; q < k; q++) correction = Math.max(correction, Math.abs(next[q]! - start[q]!));
-    state.set(finite ? next : state);
-    if (finite && opts.acceptSmallCorrection === true && correction <= opts.toleranceVolts) {
+    if (!newtonOk) {
+      // Singular sensitivity: one period of plain time stepping instead.
+      for (let i = 0; i < n2; i++) delta[i] = run.end[i]! - run.start[i]!;
+    }
+    let biggest = 0;
+    for (let i = 0; i < n2; i++) biggest = Math.max(biggest, Math.abs(delta[i]!));
+    if (biggest > maxMove) for (let i = 0; i < n2; i++) delta[i] = (delta[i]! * maxMove) / biggest;
+
+    const correction = Math.min(biggest, maxMove);
+    if (opts.acceptSmallCorrection === true && correction <= opts.toleranceVolts) {
+      // Coarse use: the corrected state is good enough; keep the last trajectory.
+      const next = run.start.slice();
+      for (let i = 0; i < n2; i++) next[i] = next[i]! + delta[i]!;
+      run = { ...run, start: next };
       converged = true;
       break;
     }
+
+    // Backtracking line search on the residual: halve the step until it improves.
+    let accepted: PeriodRun | null = null;
+    let lambda = 1;
+    for (let tries = 0; tries < 4 && iterations < maxIterations; tries++) {
+      const trial = run.start.slice();
+      for (let i = 0; i < n2; i++) trial[i] = trial[i]! + lambda * delta[i]!;
+      const r = runPeriod(trial, run.nodeVolts);
+      iterations++;
+      if (r.ok && r.residual < run.residual) {
+        accepted = r;
+        break;
+      }
+      lambda /= 2;
+    }
+    if (accepted === null) {
+      // No improvement along the Newton direction: fall back to the end state of the last
+      // period (plain time stepping always moves toward the stable periodic solution).
+      if (iterations >= maxIterations) break;
+      accepted = runPeriod(run.end.slice(), run.nodeVolts);
+      iterations++;
+    }
+    run = accepted;
+    converged = run.ok && run.residual <= opts.toleranceVolts;
   }
-  void tmp;
+
   return {
-    converged,
+    converged: converged && run.ok,
     iterations,
-    residualVolts: Number.isFinite(residual) ? residual : Number.MAX_VALUE,
+    residualVolts: Number.isFinite(run.residual) ? run.residual : Number.MAX_VALUE,
     stepsPerPeriod: N,
     periodSeconds: T,
     times,
-    nodeVolts,
-    capacitorVolts: capVolts,
-    startState: state,
-    stepsConverged,
+    nodeVolts: run.nodeVolts,
+    capacitorVolts: run.capVolts,
+    startState: run.start,
+    stepsConverged: run.ok,
   };
 }

@@ -209,7 +209,7 @@ export interface SolveOptions {
   waveformPoints?: number;
   /** Integrator steps per period. Default chosen by the solver. */
   stepsPerPeriod?: number;
-  /** Shooting tolerance on the capacitor state, volts. Default 1e-6 × the secondary peak (at least 1 µV). */
+  /** Shooting tolerance on the capacitor state (how far it may move over one period), volts. Default 1e-4 × the secondary peak (at least 0.1 mV). */
   toleranceVolts?: number;
   /** Most shooting iterations. Default 40. */
   maxIterations?: number;
