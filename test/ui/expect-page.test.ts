@@ -66,6 +66,24 @@ describe('ExpectPage', () => {
     expect(expectedCell('Diode peak inverse')).toBe(formatQuantity(result.diodePiv, 'V'));
   });
 
+  it('shows the regulator’s figures and verdict when a linear regulator is chosen', async () => {
+    await act(() => {
+      const select = root.querySelector<HTMLSelectElement>('#regulatorKind');
+      if (select === null) throw new Error('no regulator select');
+      select.value = 'linear';
+      select.dispatchEvent(new Event('change', { bubbles: true }));
+    });
+    await type('regulatorVolts', '5');
+    await submit();
+    await vi.waitFor(() => expect(root.querySelector('table.readings')).not.toBeNull());
+    const built = buildSpecInput({ ...DEFAULT_FORM, regulatorKind: 'linear', regulatorVolts: '5' });
+    if (!('input' in built)) throw new Error('the regulator form must build');
+    const regulator = expectReadings(built.input).regulator;
+    expect(regulator).not.toBeNull();
+    expect(expectedCell('Regulated output')).toBe(formatQuantity(regulator?.dc ?? NaN, 'V'));
+    expect(root.querySelector('.verdict')?.textContent).toMatch(regulator?.inRegulation ? /stays in regulation/ : /drops out/);
+  });
+
   it('puts the SpecError text under the field at fault, marks it invalid and moves focus to it', async () => {
     await type('capacitorMicrofarads', '-5');
     await submit();
