@@ -234,7 +234,8 @@ describe('invariants over random supplies (fast-check)', () => {
     resistive: fc.boolean(),
   });
   // Keep loads sane: a load current that the capacitor can carry through a cycle.
-  function toSpec(s: fc.RecordValue<typeof supply>, scale = 1, extraFarads = 1): SupplySpecInput {
+  type Supply = typeof supply extends fc.Arbitrary<infer T> ? T : never;
+  function toSpec(s: Supply, scale = 1, extraFarads = 1): SupplySpecInput {
     const vm = Math.SQRT2 * s.vrms;
     const amps = s.loadFraction * 2 * 50 * s.farads * vm * 0.3;
     return {
