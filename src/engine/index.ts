@@ -3,11 +3,11 @@
  *
  * Pure TypeScript, no DOM, no I/O: the worker, the CLI and the tests call it alike.
  */
-import { buildCircuit } from './circuit';
+import { buildCircuit, type Circuit } from './circuit';
 import { estimateSupply } from './estimates';
-import { measurePeriod, sampleWaveform } from './measures';
+import { measurePeriod, sampleWaveform, type PeriodMeasures } from './measures';
 import { parseSupplySpec } from './spec';
-import { solveSteadyState } from './steady-state';
+import { solveSteadyState, type SteadyStateSolution } from './steady-state';
 import type { SolveOptions, SupplyEstimates, SupplyResult, SupplySpec } from './types';
 
 export * from './types';
@@ -146,6 +146,25 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
   const maxIterations = options.maxIterations ?? 40;
   const filtered = circuit.capacitors.length > 0;
   const estimates = estimateSupply(spec);
+  const warm = options.warmStart;
+  if (warm !== undefined && filtered && options.stepsPerPeriod === undefined && warm.topology === spec.topology && warm.nodeCount === circuit.nodeCount && warm.startState.length === 2 * circuit.capacitors.length) {
+    // Voltages scale with the secondary to first order: predict the new state that way.
+    const ratio = warm.vrms > 0 ? spec.source.vrms / warm.vrms : 1;
+    const quick = solveSteadyState(circuit, {
+      steps: warm.steps,
+      toleranceVolts,
+      maxIterations,
+      initialCapacitorVolts: [],
+      initialState: warm.startState.map((v) => v * ratio),
+      predictor: { times: warm.times, nodeVolts: ratio === 1 ? warm.nodeVolts : warm.nodeVolts.map((v) => v * ratio) },
+    });
+    if (quick.converged && quick.stepsConverged) {
+      const quickMeas = measurePeriod(circuit, quick);
+      if (gridResolvesConduction(quickMeas.series.iDiode, warm.steps)) {
+        return assemble(spec, circuit, quick, quickMeas, quick.iterations, true, estimates, options);
+      }
+    }
+  }
   let steps = uniformSteps(options.stepsPerPeriod ?? (filtered ? COARSE_STEPS : UNFILTERED_STEPS), periodSeconds);
   let sol = solveSteadyState(circuit, {
     steps,
@@ -173,10 +192,24 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
     sol = refined;
     meas = measurePeriod(circuit, sol);
   }
+  return assemble(spec, circuit, sol, meas, iterations, coarseOk, estimates, options);
+}
+
+/** The result object from a solved period. */
+function assemble(
+  spec: SupplySpec,
+  circuit: Circuit,
+  sol: SteadyStateSolution,
+  meas: PeriodMeasures,
+  iterations: number,
+  earlierOk: boolean,
+  estimates: SupplyEstimates,
+  options: SolveOptions,
+): SupplyResult {
   const figures = [meas.dc, meas.ripplePp, meas.rippleRms, meas.diodePeakA, meas.diodePiv, meas.secondaryRms];
   const allFinite = figures.every(Number.isFinite);
   const result: SupplyResult = {
-    converged: coarseOk && sol.converged && sol.stepsConverged && allFinite,
+    converged: earlierOk && sol.converged && sol.stepsConverged && allFinite,
     iterations,
     residualVolts: finiteOrZero(sol.residualVolts),
     stepsPerPeriod: sol.stepsPerPeriod,
@@ -196,7 +229,39 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
   if (options.waveformPoints !== undefined && options.waveformPoints > 0) {
     result.waveform = sampleWaveform(meas.series, sol.times, options.waveformPoints);
   }
+  if (options.keepWarmStart === true) {
+    const steps = new Float64Array(sol.stepsPerPeriod);
+    for (let n = 0; n < steps.length; n++) steps[n] = sol.times[n + 1]! - sol.times[n]!;
+    result.warmStart = {
+      topology: spec.topology,
+      nodeCount: circuit.nodeCount,
+      vrms: spec.source.vrms,
+      steps,
+      startState: sol.startState.slice(),
+      times: sol.times,
+      nodeVolts: sol.nodeVolts,
+    };
+  }
   return result;
+}
+
+/**
+ * True when every step in which a diode conducts is one of the grid's fine steps (at most twice
+ * the shortest, allowing for the grading), so a warm-started grid still resolves the pulses.
+ */
+function gridResolvesConduction(iDiode: Float64Array[], steps: Float64Array): boolean {
+  let shortest = Infinity;
+  for (const h of steps) shortest = Math.min(shortest, h);
+  for (const cur of iDiode) {
+    let peak = 0;
+    for (const i of cur) peak = Math.max(peak, i);
+    if (!(peak > 1e-9)) continue;
+    const thr = CONDUCTING_FRACTION * peak;
+    for (let n = 0; n < steps.length; n++) {
+      if ((cur[n]! > thr || cur[n + 1]! > thr) && steps[n]! > 2.01 * shortest) return false;
+    }
+  }
+  return true;
 }
 
 /**

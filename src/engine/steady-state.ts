@@ -35,6 +35,8 @@ export interface SteadyStateOptions {
   maxIterations: number;
   /** Start state guess: capacitor voltages (volts), one per capacitor. */
   initialCapacitorVolts: number[];
+  /** A full start state [vC at t = 0 ..., vC one step before ...] that overrides the guess. */
+  initialState?: Float64Array;
   /**
    * Stop as soon as a Newton correction of the start state is within the tolerance, without
    * integrating one more period to confirm it. The returned trajectory is then the last period
@@ -485,6 +487,7 @@ export function solveSteadyState(c: Circuit, opts: SteadyStateOptions): SteadySt
     first[q] = opts.initialCapacitorVolts[q] ?? 0;
     first[k + q] = first[q]!;
   }
+  if (opts.initialState !== undefined && opts.initialState.length === n2) first.set(opts.initialState);
   let run = runPeriod(first, predicted);
   let iterations = 1;
   let converged = k === 0 ? run.ok : run.residual <= opts.toleranceVolts;

@@ -202,6 +202,8 @@ export interface SupplyResult {
   regulator: RegulatorResult | null;
   estimates: SupplyEstimates;
   waveform?: Waveform;
+  /** Present when `keepWarmStart` was asked for. Not JSON data. */
+  warmStart?: WarmStart;
 }
 
 export interface SolveOptions {
@@ -213,4 +215,23 @@ export interface SolveOptions {
   toleranceVolts?: number;
   /** Most shooting iterations. Default 40. */
   maxIterations?: number;
+  /**
+   * Start from an earlier solution of a similar supply (same topology and parts, other values):
+   * its grid and state. Used by tolerance and fault sweeps; ignored when it does not fit.
+   */
+  warmStart?: WarmStart;
+  /** Return `warmStart` in the result for later solves. */
+  keepWarmStart?: boolean;
+}
+
+/** An earlier solution's grid, start state and trajectory (opaque to callers). */
+export interface WarmStart {
+  readonly topology: Topology;
+  readonly nodeCount: number;
+  /** Secondary RMS of the solved supply: a new supply's state is predicted in proportion. */
+  readonly vrms: number;
+  readonly steps: Float64Array;
+  readonly startState: Float64Array;
+  readonly times: Float64Array;
+  readonly nodeVolts: Float64Array;
 }
