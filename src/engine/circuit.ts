@@ -22,8 +22,9 @@ export const MIN_OHMS = 1e-3;
 export const GMIN_SIEMENS = 1e-12;
 /**
  * Below this output voltage a constant-current load (or a regulator's quiescent draw) tapers
- * linearly to zero, as a real electronic load does; so a dead supply reads 0 V, not a negative
- * voltage forced by an ideal current sink. Our own modelling choice.
+ * linearly to zero, as a real electronic load does, and goes on as that conductance through
+ * zero; so a dead supply reads 0 V, not a voltage forced by an ideal current sink. Our own
+ * modelling choice.
  */
 export const CURRENT_LOAD_KNEE_VOLTS = 0.5;
 /** Knee width of the piecewise-linear diode's smooth switch (volts). Our modelling choice. */

@@ -91,19 +91,17 @@ export function evalJunction(j: Junction, volts: number, guessVj: number, out: F
 }
 
 /**
- * Constant-current sink that tapers linearly to zero below the knee voltage (see
- * CURRENT_LOAD_KNEE_VOLTS).
+ * Constant-current sink that tapers linearly to zero below the knee voltage and carries on as
+ * the same conductance through zero and below (see CURRENT_LOAD_KNEE_VOLTS): a floating output
+ * (no diode feeding it) then settles at 0 V rather than at any negative voltage.
  */
 export function evalCurrentSink(amps: number, volts: number, out: Float64Array): void {
   if (volts >= CURRENT_LOAD_KNEE_VOLTS) {
     out[0] = amps;
     out[1] = 0;
-  } else if (volts > 0) {
+  } else {
     out[0] = (amps * volts) / CURRENT_LOAD_KNEE_VOLTS;
     out[1] = amps / CURRENT_LOAD_KNEE_VOLTS;
-  } else {
-    out[0] = 0;
-    out[1] = 0;
   }
 }
 

@@ -238,8 +238,9 @@ export function buildNetlist(
     }
   });
 
-  // Load law (brief): resistive, or constant current tapering linearly to 0 below 0.5 V.
-  const taper = (v: string): string => `min(1,max(${v},0)/${num(CURRENT_TAPER_VOLTS)})`;
+  // Load law: resistive, or constant current that behaves as a resistor below 0.5 V, through
+  // zero (so a floating output settles at 0 V instead of anywhere below it).
+  const taper = (v: string): string => `min(1,${v}/${num(CURRENT_TAPER_VOLTS)})`;
   const loadCurrent = (v: string): string =>
     spec.load.kind === 'resistive'
       ? `(${v})/${num(spec.load.ohms)}`

@@ -76,7 +76,8 @@ export type MainsRegion = 'ansi-120-a' | 'ansi-120-b' | 'en-230' | 'jp-100-50' |
 export interface ToleranceSettings {
   /** Mains band; default from the spec's frequency ("en-230" at 50 Hz, "ansi-120-a" at 60 Hz). */
   region?: MainsRegion;
-  /** For region "custom": ± fraction of nominal, e.g. 0.1. */
+  /** For region "custom": nominal mains volts RMS and ± fraction of nominal, e.g. 0.1. */
+  mainsVolts?: number;
   lineFraction?: number;
   /** Capacitor tolerance, ± fraction (IEC 60062 letter M: 0.2). */
   capacitorFraction?: number;
@@ -138,7 +139,7 @@ export type FaultId =
 
 export interface RankedFault {
   fault: FaultId;
-  /** Posterior probability given the readings (all entries add up to 1 with `none`). */
+  /** Posterior probability given the readings (the entries add up to 1). */
   probability: number;
   /** Plain words: why the readings point here. */
   why: string;
