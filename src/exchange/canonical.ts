@@ -1,0 +1,115 @@
+/**
+ * Canonical JSON and the digests over it.
+ *
+ * The digest of a job file is SHA-256 over the UTF-8 bytes of the canonical JSON of the file's
+ * object without its `sha256` member. Canonical JSON follows RFC 8785 (JSON Canonicalization
+ * Scheme): no whitespace, object members sorted by the UTF-16 code units of their names, numbers
+ * and strings written as ECMAScript's JSON.stringify writes them (RFC 8785 §3.2.2 adopts exactly
+ * those rules). A file rewritten by any tool that keeps the values keeps its digest; a changed
+ * value, name or order of array items changes it.
+ *
+ * Runs in the browser and in Node 20 alike: WebCrypto's `crypto.subtle.digest` and TextEncoder
+ * are reached through `globalThis`, typed here by hand so this folder compiles without the DOM
+ * library.
+ */
+
+interface SubtleDigest {
+  digest(algorithm: 'SHA-256', data: Uint8Array): Promise<ArrayBuffer>;
+}
+interface Utf8Encoder {
+  encode(text: string): Uint8Array;
+}
+interface Utf8Decoder {
+  decode(bytes: Uint8Array): string;
+}
+interface WebGlobals {
+  crypto?: { subtle?: SubtleDigest };
+  TextEncoder: new () => Utf8Encoder;
+  TextDecoder: new (label: 'utf-8', options: { fatal: boolean; ignoreBOM: boolean }) => Utf8Decoder;
+}
+
+const web = globalThis as unknown as WebGlobals;
+
+/** UTF-8 bytes of a string (lone surrogates become U+FFFD, as the Encoding Standard says). */
+export function encodeUtf8(text: string): Uint8Array {
+  return new web.TextEncoder().encode(text);
+}
+
+/**
+ * Strict UTF-8 decoding: returns the text, or throws a TypeError when the bytes are not UTF-8
+ * (a damaged file). A leading byte-order mark is kept for the caller to strip.
+ */
+export function decodeUtf8Strict(bytes: Uint8Array): string {
+  return new web.TextDecoder('utf-8', { fatal: true, ignoreBOM: true }).decode(bytes);
+}
+
+/**
+ * Lowercase hex SHA-256 (FIPS 180-4) of the UTF-8 bytes of `text`, by WebCrypto.
+ * Throws when the runtime has no WebCrypto (Node before 19 without the flag; an insecure page).
+ */
+export async function sha256Hex(text: string): Promise<string> {
+  const subtle = web.crypto?.subtle;
+  if (subtle === undefined) throw new Error('this runtime has no WebCrypto (crypto.subtle) to compute SHA-256');
+  const digest = new Uint8Array(await subtle.digest('SHA-256', encodeUtf8(text)));
+  let hex = '';
+  for (const byte of digest) hex += byte.toString(16).padStart(2, '0');
+  return hex;
+}
+
+/** Deepest nesting canonicalJson follows; a job file is at most 6 levels deep. */
+const MAX_DEPTH = 64;
+
+/**
+ * RFC 8785 canonical JSON of any JSON value (objects from JSON.parse, or records built in code).
+ * `undefined` members are left out, as JSON.stringify does. Throws a RangeError on nesting deeper
+ * than 64 levels and a TypeError on values JSON cannot hold (functions, non-finite numbers).
+ *
+ * This is the reference implementation; parse.ts gets the same text faster by rebuilding each
+ * record with its members in sorted order and calling JSON.stringify once (test/exchange checks
+ * that the two agree).
+ */
+export function canonicalJson(value: unknown): string {
+  return canonicalPart(value, 0);
+}
+
+function canonicalPart(value: unknown, depth: number): string {
+  if (depth > MAX_DEPTH) throw new RangeError(`nested deeper than ${MAX_DEPTH} levels`);
+  if (value === null || typeof value === 'boolean' || typeof value === 'string') return JSON.stringify(value);
+  if (typeof value === 'number') {
+    if (!Number.isFinite(value)) throw new TypeError(`JSON has no ${value}`);
+    return JSON.stringify(value);
+  }
+  if (Array.isArray(value)) {
+    return `[${value.map((item) => (item === undefined ? 'null' : canonicalPart(item, depth + 1))).join(',')}]`;
+  }
+  if (typeof value === 'object') {
+    const record = value as Record<string, unknown>;
+    // Default sort compares UTF-16 code units, which is RFC 8785 §3.2.3's order.
+    const names = Object.keys(record).sort();
+    const parts: string[] = [];
+    for (const name of names) {
+      const member = record[name];
+      if (member !== undefined) parts.push(`${JSON.stringify(name)}:${canonicalPart(member, depth + 1)}`);
+    }
+    return `{${parts.join(',')}}`;
+  }
+  throw new TypeError(`JSON has no ${typeof value}`);
+}
+
+const FNV64_OFFSET = 0xcbf29ce484222325n;
+const FNV64_PRIME = 0x100000001b3n;
+const MASK64 = 0xffffffffffffffffn;
+
+/**
+ * 64-bit FNV-1a (Fowler–Noll–Vo; IETF draft-eastlake-fnv) of the UTF-8 bytes of `text`, as 16
+ * lowercase hex digits. Not a security digest: it names reading variants in a merge, where the
+ * same content must always get the same name, synchronously.
+ */
+export function fnv1a64Hex(text: string): string {
+  let hash = FNV64_OFFSET;
+  for (const byte of encodeUtf8(text)) {
+    hash ^= BigInt(byte);
+    hash = (hash * FNV64_PRIME) & MASK64;
+  }
+  return hash.toString(16).padStart(16, '0');
+}

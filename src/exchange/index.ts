@@ -1,0 +1,15 @@
+/**
+ * Job exchange: the job file (JSON with a SHA-256 digest), its checks, the merge, the CSV of
+ * readings, the demo shop and the review filter. Pure TypeScript for the browser and Node alike:
+ * no DOM, no Node APIs; WebCrypto and TextEncoder through globalThis (canonical.ts). The demo
+ * shop (demo.ts) runs the engine and is imported on its own, so the app does not load it.
+ * The format is documented in docs/exchange-format.md.
+ */
+export * from './format';
+export { canonicalJson, sha256Hex } from './canonical';
+export { readJobFile, formatProblem, formatProblems, digestText, type ReadResult, type FileContent } from './parse';
+export { buildJobFile, writeJobFile, selectForExport, ExportError, type WriteOptions, type ExportSelection } from './write';
+export { mergePayloads, type MergeSource, type MergeResult, type MergeCounts, type ReadingClash } from './merge';
+export { sortPayload } from './order';
+export { csvRecords, toCsv, neutraliseFormula, restoreFormula, quoteField, CSV_HEADERS, CSV_NUMERIC_HEADERS, READING_UNITS, type CsvOptions } from './csv';
+export { importJobFiles, MemoryImportStore, type ImportStore, type ImportTransaction, type ImportFile, type FileImportReport, type ImportOptions, type PayloadIds } from './import';

@@ -1,0 +1,515 @@
+/**
+ * The records of a job file, checked field by field.
+ *
+ * Each check takes an untrusted value (parsed JSON from a file, or a record from the store before
+ * export) and returns a fresh copy built only from the fields the format knows, with object
+ * members inserted in sorted order, or `INVALID` after reporting why. Three things follow:
+ * - a key such as "__proto__" or "constructor" is reported as an unknown field and never copied,
+ *   so nothing imported can reach an object's prototype;
+ * - every string, array and number is checked for type and size before it is kept (LIMITS);
+ * - JSON.stringify of a checked record is its RFC 8785 canonical JSON, which is what makes the
+ *   digest fast (canonical.ts).
+ *
+ * The field tables are typed against the model (src/model/job.ts): a field added to Job, Reading,
+ * Asset or Technician and not here fails to compile, and so does a required/optional mismatch.
+ */
+import { LIVE_READING_KINDS, POWER_OFF_READING_KINDS } from '../engine/diagnosis/types';
+import type { MeterAccuracy, MeterSettings } from '../engine/diagnosis/types';
+import { TOPOLOGIES } from '../engine/types';
+import type {
+  CapacitorInput,
+  DiodeInput,
+  LoadInput,
+  RegulatorInput,
+  SourceInput,
+  SupplySpecInput,
+} from '../engine/types';
+import type { Asset, Job, JobFinish, MergeConflict, Reading, SupplyNameplate, Technician } from '../model/job';
+import { ASSET_FIELDS, JOB_FIELDS, LIMITS, type ExchangeProblem, type ExportedBy, type RecordConflict } from './format';
+
+/** What a check returns for a value it refused (after reporting it). */
+export const INVALID: unique symbol = Symbol('invalid');
+export type Invalid = typeof INVALID;
+
+/** Collects problems for one file; knows where in the file the current value is. */
+export class Checker {
+  readonly problems: ExchangeProblem[] = [];
+  /** All problems found, listed or not. */
+  problemCount = 0;
+  /** The job being checked, for messages. */
+  jobId: string | undefined;
+  /** The record being checked, in words, for messages. */
+  record: string | undefined;
+  private readonly path: (string | number)[] = [];
+
+  constructor(readonly file: string) {}
+
+  enter(key: string | number): void {
+    this.path.push(key);
+  }
+
+  leave(): void {
+    this.path.pop();
+  }
+
+  /** The path of the current value, e.g. "payload.readings[12].value". */
+  where(): string {
+    let text = '';
+    for (const key of this.path) {
+      if (typeof key === 'number') text += `[${key}]`;
+      else text += text === '' ? key : /^[A-Za-z_$][\w$]*$/.test(key) ? `.${key}` : `[${JSON.stringify(key)}]`;
+    }
+    return text;
+  }
+
+  /** Reports a problem at the current path; returns INVALID for the caller to pass on. */
+  fail(message: string): Invalid {
+    this.problemCount += 1;
+    if (this.problems.length < LIMITS.problemsListed) {
+      const problem: ExchangeProblem = { file: this.file, message };
+      if (this.jobId !== undefined) problem.jobId = this.jobId;
+      if (this.record !== undefined) problem.record = this.record;
+      const field = this.where();
+      if (field !== '') problem.field = field;
+      this.problems.push(problem);
+    }
+    return INVALID;
+  }
+}
+
+/** Checks one value; returns the checked copy or INVALID. */
+export type Check = (value: unknown, checker: Checker) => unknown;
+
+/** A plain description of a value's type, for "expected X, got Y". */
+export function describeType(value: unknown): string {
+  if (value === null) return 'null';
+  if (Array.isArray(value)) return 'a list';
+  if (typeof value === 'string') return value.length > 40 ? `text (${value.length} characters)` : `text ${JSON.stringify(value)}`;
+  if (typeof value === 'object') return 'an object';
+  if (typeof value === 'number') return `the number ${value}`;
+  return typeof value;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Scalars
+// ---------------------------------------------------------------------------------------------
+
+/** Text of at most `maxChars` UTF-16 units; `nonEmpty` refuses "". */
+export function text(maxChars: number, nonEmpty = false): Check {
+  return (value, c) => {
+    if (typeof value !== 'string') return c.fail(`expected text, got ${describeType(value)}`);
+    if (value.length > maxChars) return c.fail(`text too long (${value.length} characters; at most ${maxChars})`);
+    if (nonEmpty && value.trim() === '') return c.fail('must not be empty');
+    return value;
+  };
+}
+
+const SHORT = text(LIMITS.shortTextChars);
+const SHORT_NON_EMPTY = text(LIMITS.shortTextChars, true);
+const LONG = text(LIMITS.longTextChars);
+
+/** Characters an id may use: UUIDs, and the "~" of a merge's reading variants (merge.ts). */
+const ID_PATTERN = /^[A-Za-z0-9._:~-]+$/;
+
+/** A merge's name for a second reading under a taken id: the id, "~", 16 hex digits (merge.ts). */
+export const VARIANT_SUFFIX = /~[0-9a-f]{16}$/;
+const VARIANT_SUFFIX_CHARS = 17;
+
+export const id: Check = (value, c) => {
+  if (typeof value !== 'string') return c.fail(`expected an id (text), got ${describeType(value)}`);
+  const isVariant = value.length > VARIANT_SUFFIX_CHARS && VARIANT_SUFFIX.test(value);
+  const baseChars = isVariant ? value.length - VARIANT_SUFFIX_CHARS : value.length;
+  if (value.length === 0 || baseChars > LIMITS.idChars) {
+    return c.fail(`an id has 1 to ${LIMITS.idChars} characters, this one ${value.length}`);
+  }
+  if (!ID_PATTERN.test(value)) return c.fail(`an id uses only A-Z a-z 0-9 . _ : ~ -, got ${JSON.stringify(value)}`);
+  return value;
+};
+
+/** Exactly Date.prototype.toISOString's form, so times compare as text and survive a round trip. */
+const ISO_PATTERN = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/;
+
+export const isoTime: Check = (value, c) => {
+  if (typeof value !== 'string') return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${describeType(value)}`);
+  if (!ISO_PATTERN.test(value) || new Date(value).toISOString() !== value) {
+    return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${JSON.stringify(value.slice(0, 40))}`);
+  }
+  return value;
+};
+
+export const finite: Check = (value, c) => {
+  if (typeof value !== 'number' || !Number.isFinite(value)) return c.fail(`expected a number, got ${describeType(value)}`);
+  return value;
+};
+
+export function oneOf<T extends string>(choices: readonly T[]): Check {
+  const allowed = new Set<string>(choices);
+  return (value, c) => {
+    if (typeof value === 'string' && allowed.has(value)) return value;
+    return c.fail(`expected one of ${choices.map((choice) => JSON.stringify(choice)).join(', ')}, got ${describeType(value)}`);
+  };
+}
+
+const meterValue: Check = (value, c) => {
+  if (value === 'OL') return value;
+  if (typeof value !== 'number' || !Number.isFinite(value)) return c.fail(`expected a number or "OL", got ${describeType(value)}`);
+  return value;
+};
+
+// ---------------------------------------------------------------------------------------------
+// Lists and objects
+// ---------------------------------------------------------------------------------------------
+
+export function arrayOf(item: Check, maxItems: number, what = 'items'): Check {
+  return (value, c) => {
+    if (!Array.isArray(value)) return c.fail(`expected a list of ${what}, got ${describeType(value)}`);
+    if (value.length > maxItems) return c.fail(`too many ${what} (${value.length}; at most ${maxItems})`);
+    const out: unknown[] = new Array(value.length);
+    let ok = true;
+    for (let i = 0; i < value.length; i++) {
+      c.enter(i);
+      const checked = item(value[i], c);
+      c.leave();
+      if (checked === INVALID) ok = false;
+      out[i] = checked;
+    }
+    return ok ? out : INVALID;
+  };
+}
+
+function tuple(items: readonly Check[]): Check {
+  return (value, c) => {
+    if (!Array.isArray(value) || value.length !== items.length) {
+      return c.fail(`expected a list of ${items.length}, got ${describeType(value)}`);
+    }
+    const out: unknown[] = [];
+    let ok = true;
+    items.forEach((item, i) => {
+      c.enter(i);
+      const checked = item(value[i], c);
+      c.leave();
+      if (checked === INVALID) ok = false;
+      out.push(checked);
+    });
+    return ok ? out : INVALID;
+  };
+}
+
+interface Required_ {
+  readonly check: Check;
+  readonly optional: false;
+}
+interface Optional_ {
+  readonly check: Check;
+  readonly optional: true;
+}
+/** One table entry per member of T: optional members must be `opt`, required ones `req`. */
+export type FieldsOf<T> = { [K in keyof T]-?: undefined extends T[K] ? Optional_ : Required_ };
+
+export const req = (check: Check): Required_ => ({ check, optional: false });
+export const opt = (check: Check): Optional_ => ({ check, optional: true });
+
+const POLLUTING_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
+
+function isPlainRecord(value: unknown): value is Record<string, unknown> {
+  return typeof value === 'object' && value !== null && !Array.isArray(value);
+}
+
+function reportUnknownKeys(value: Record<string, unknown>, known: ReadonlySet<string>, c: Checker): void {
+  for (const key of Object.keys(value)) {
+    if (known.has(key)) continue;
+    c.enter(key);
+    c.fail(POLLUTING_KEYS.has(key) ? `"${key}" is not allowed as a field name` : `unknown field "${key.slice(0, 60)}"`);
+    c.leave();
+  }
+}
+
+/**
+ * An object with exactly the members in `fields` (missing optional ones allowed, unknown ones
+ * refused). The copy has its members in sorted order; absent optional members stay absent.
+ */
+export function object<T>(fields: FieldsOf<T>, what = 'an object'): Check {
+  const table = Object.entries(fields as Record<string, Required_ | Optional_>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
+  const known = new Set(table.map(([name]) => name));
+  return (value, c) => {
+    if (!isPlainRecord(value)) return c.fail(`expected ${what}, got ${describeType(value)}`);
+    const out: Record<string, unknown> = {};
+    let ok = true;
+    let present = 0;
+    for (const [name, spec] of table) {
+      if (!Object.hasOwn(value, name)) {
+        if (!spec.optional) {
+          c.enter(name);
+          c.fail('missing');
+          c.leave();
+          ok = false;
+        }
+        continue;
+      }
+      present += 1;
+      c.enter(name);
+      const checked = spec.check(value[name], c);
+      c.leave();
+      if (checked === INVALID) ok = false;
+      else out[name] = checked;
+    }
+    if (Object.keys(value).length !== present) {
+      reportUnknownKeys(value, known, c);
+      ok = false;
+    }
+    return ok ? out : INVALID;
+  };
+}
+
+/** An object whose member names come from `keys` and whose values all pass `item`; copy sorted. */
+function recordOf(keys: readonly string[], item: Check, what: string): Check {
+  const sortedKeys = [...keys].sort();
+  const known = new Set(keys);
+  return (value, c) => {
+    if (!isPlainRecord(value)) return c.fail(`expected ${what}, got ${describeType(value)}`);
+    const out: Record<string, unknown> = {};
+    let ok = true;
+    let present = 0;
+    for (const key of sortedKeys) {
+      if (!Object.hasOwn(value, key)) continue;
+      present += 1;
+      c.enter(key);
+      const checked = item(value[key], c);
+      c.leave();
+      if (checked === INVALID) ok = false;
+      else out[key] = checked;
+    }
+    if (Object.keys(value).length !== present) {
+      reportUnknownKeys(value, known, c);
+      ok = false;
+    }
+    return ok ? out : INVALID;
+  };
+}
+
+/** A union of object shapes told apart by which members are present. */
+function variant(pick: (value: Record<string, unknown>) => Check | string, what: string): Check {
+  return (value, c) => {
+    if (!isPlainRecord(value)) return c.fail(`expected ${what}, got ${describeType(value)}`);
+    const chosen = pick(value);
+    return typeof chosen === 'string' ? c.fail(chosen) : chosen(value, c);
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// The supply spec as the technician entered it (engine's SupplySpecInput): shape only. Whether
+// the values make a workable supply is the engine's question, asked when the job is opened, so a
+// file is never refused because a later engine got stricter.
+// ---------------------------------------------------------------------------------------------
+
+const sourceInput = object<SourceInput>({ vrms: req(finite), hz: req(finite), ohms: opt(finite) }, 'a source');
+
+type ShockleyInput = Extract<DiodeInput, { is: number }>;
+type FixedDropInput = Extract<DiodeInput, { vf: number }>;
+type PresetInput = Extract<DiodeInput, { preset: string }>;
+const presetDiode = object<PresetInput>({ preset: req(oneOf(['silicon', 'schottky', 'germanium', 'ideal'])) });
+const shockleyDiode = object<ShockleyInput>({ is: req(finite), n: req(finite), ohms: opt(finite) });
+const fixedDropDiode = object<FixedDropInput>({ vf: req(finite), ohms: opt(finite) });
+const diodeInput = variant(
+  (value) =>
+    'preset' in value ? presetDiode : 'is' in value ? shockleyDiode : 'vf' in value ? fixedDropDiode : 'a diode needs "preset", "is" and "n", or "vf"',
+  'a diode',
+);
+
+const capacitorOne = object<CapacitorInput>({ farads: req(finite), esr: opt(finite) }, 'a capacitor');
+const capacitorPair = tuple([capacitorOne, capacitorOne]);
+const capacitorInput: Check = (value, c) => (Array.isArray(value) ? capacitorPair(value, c) : capacitorOne(value, c));
+
+const ohmsLoad = object<Extract<LoadInput, { ohms: number }>>({ ohms: req(finite) });
+const ampsLoad = object<Extract<LoadInput, { amps: number }>>({ amps: req(finite) });
+const loadInput = variant((value) => ('ohms' in value ? ohmsLoad : 'amps' in value ? ampsLoad : 'a load needs "ohms" or "amps"'), 'a load');
+
+type LinearInput = Extract<RegulatorInput, { volts: number }>;
+type ZenerInput = Extract<RegulatorInput, { zenerVolts: number }>;
+const linearRegulator = object<LinearInput>({ volts: req(finite), dropout: opt(finite), quiescentAmps: opt(finite) });
+const zenerRegulator = object<ZenerInput>({ zenerVolts: req(finite), seriesOhms: req(finite), zenerOhms: opt(finite) });
+const regulatorInput = variant(
+  (value) => ('volts' in value ? linearRegulator : 'zenerVolts' in value ? zenerRegulator : 'a regulator needs "volts" or "zenerVolts"'),
+  'a regulator',
+);
+
+const supplyInput = object<SupplySpecInput>(
+  {
+    topology: req(oneOf(TOPOLOGIES)),
+    source: req(sourceInput),
+    diode: opt(diodeInput),
+    capacitor: opt(capacitorInput),
+    load: req(loadInput),
+    regulator: opt(regulatorInput),
+    diodeCondition: opt(recordOf(['D1', 'D2', 'D3', 'D4'], oneOf(['ok', 'open', 'short']), 'diode conditions')),
+    temperatureC: opt(finite),
+  },
+  'a supply',
+);
+
+const accuracy = object<MeterAccuracy>({ percent: req(finite), counts: req(finite) }, 'an accuracy');
+const meterSettings = object<MeterSettings>(
+  {
+    kind: opt(oneOf(['true-rms-ac', 'average-responding', 'true-rms-ac-dc'])),
+    dc: opt(accuracy),
+    ac: opt(accuracy),
+    displayCounts: opt(finite),
+    acBandwidthHz: opt(tuple([finite, finite])),
+    diodeTestVolts: opt(finite),
+    diodeTestAmps: opt(finite),
+  },
+  'meter settings',
+);
+
+const nameplate = object<SupplyNameplate>(
+  {
+    region: req(SHORT),
+    secondaryVolts: opt(finite),
+    transformerVa: opt(finite),
+    capacitorMicrofarads: opt(finite),
+    capacitorVoltRating: opt(finite),
+    diodeKind: opt(SHORT),
+    regulator: opt(SHORT),
+    loadText: opt(SHORT),
+  },
+  'a nameplate',
+);
+
+const finish = object<JobFinish>(
+  {
+    suspectedPart: opt(SHORT),
+    faultFound: opt(SHORT),
+    actionTaken: opt(LONG),
+    partsUsed: req(arrayOf(SHORT, LIMITS.partsPerJob, 'parts')),
+    outcome: opt(oneOf(['fixed', 'not-fixed', 'referred', 'no-fault-found'])),
+    notes: opt(LONG),
+  },
+  'a finish',
+);
+
+// ---------------------------------------------------------------------------------------------
+// Records
+// ---------------------------------------------------------------------------------------------
+
+/** The check of each job field's value, used for jobs and for the values inside conflicts. */
+export const JOB_FIELD_CHECKS = {
+  customer: SHORT,
+  site: SHORT,
+  assetId: id,
+  technicianId: id,
+  complaint: LONG,
+  supply: supplyInput,
+  nameplate,
+  status: oneOf(['open', 'finished']),
+  finish,
+  meter: meterSettings,
+} as const satisfies Record<(typeof JOB_FIELDS)[number], Check>;
+
+export const checkJob = object<Job>(
+  {
+    id: req(id),
+    createdAt: req(isoTime),
+    updatedAt: req(isoTime),
+    startedAt: opt(isoTime),
+    finishedAt: opt(isoTime),
+    customer: req(JOB_FIELD_CHECKS.customer),
+    site: req(JOB_FIELD_CHECKS.site),
+    assetId: opt(JOB_FIELD_CHECKS.assetId),
+    technicianId: req(JOB_FIELD_CHECKS.technicianId),
+    complaint: req(JOB_FIELD_CHECKS.complaint),
+    supply: opt(JOB_FIELD_CHECKS.supply),
+    nameplate: opt(JOB_FIELD_CHECKS.nameplate),
+    meter: opt(JOB_FIELD_CHECKS.meter),
+    status: req(JOB_FIELD_CHECKS.status),
+    finish: opt(JOB_FIELD_CHECKS.finish),
+    edits: req(recordOf(JOB_FIELDS, isoTime, 'edit times by field')),
+  },
+  'a job',
+);
+
+export const READING_KINDS = [...LIVE_READING_KINDS, ...POWER_OFF_READING_KINDS] as const;
+
+export const checkReading = object<Reading>(
+  {
+    id: req(id),
+    jobId: req(id),
+    kind: req(oneOf(READING_KINDS)),
+    target: opt(text(20, true)),
+    value: req(meterValue),
+    text: req(SHORT),
+    takenAt: req(isoTime),
+    phase: req(oneOf(['before', 'after'])),
+    expectedLow: opt(finite),
+    expectedHigh: opt(finite),
+    verdict: opt(oneOf(['in', 'low', 'high'])),
+    supersedes: opt(id),
+    note: opt(LONG),
+  },
+  'a reading',
+);
+
+export const checkAsset = object<Asset>(
+  {
+    id: req(id),
+    kind: req(SHORT_NON_EMPTY),
+    make: opt(SHORT),
+    model: opt(SHORT),
+    serial: opt(SHORT),
+    tag: opt(SHORT),
+    customer: req(SHORT),
+    site: req(SHORT),
+  },
+  'an asset',
+);
+
+export const checkTechnician = object<Technician>({ id: req(id), name: req(SHORT_NON_EMPTY) }, 'a technician');
+
+/** A conflict's kept and dropped values are checked as values of the field it names. */
+const conflictShape = object<MergeConflict>(
+  {
+    jobId: req(id),
+    field: req(oneOf(JOB_FIELDS)),
+    kept: opt((value) => value),
+    keptEditedAt: req(isoTime),
+    dropped: opt((value) => value),
+    droppedEditedAt: req(isoTime),
+    droppedFrom: opt(SHORT),
+  },
+  'a conflict',
+);
+
+export const checkConflict: Check = (value, c) => {
+  const shaped = conflictShape(value, c);
+  if (shaped === INVALID) return INVALID;
+  const conflict = shaped as MergeConflict & Record<string, unknown>;
+  const valueCheck = JOB_FIELD_CHECKS[conflict.field];
+  let ok = true;
+  for (const member of ['kept', 'dropped'] as const) {
+    if (!Object.hasOwn(conflict, member)) continue;
+    c.enter(member);
+    const checked = valueCheck(conflict[member], c);
+    c.leave();
+    if (checked === INVALID) ok = false;
+    else conflict[member] = checked;
+  }
+  return ok ? conflict : INVALID;
+};
+
+export const checkRecordConflict = object<RecordConflict>(
+  {
+    record: req(oneOf(['asset', 'technician'])),
+    id: req(id),
+    field: req(oneOf([...ASSET_FIELDS, 'name'])),
+    kept: opt(SHORT),
+    keptAt: req(isoTime),
+    dropped: opt(SHORT),
+    droppedAt: req(isoTime),
+    droppedFrom: opt(SHORT),
+  },
+  'an asset or technician conflict',
+);
+
+export const checkExportedBy = object<ExportedBy>(
+  { technicianId: opt(id), name: opt(SHORT), device: opt(SHORT) },
+  'who exported the file',
+);
