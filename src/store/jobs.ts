@@ -61,6 +61,32 @@ export async function setJobField<F extends JobField>(db: Database, id: string, 
   });
 }
 
+/**
+ * Sets several fields of a job at once (e.g. the supply and its nameplate), stamping each.
+ * @returns the job as stored
+ * @throws Error when there is no such job
+ */
+export async function setJobFields(db: Database, id: string, patch: Partial<Pick<Job, JobField>>, at: IsoTime = nowIso()): Promise<Job> {
+  const tx = db.transaction('jobs', 'readwrite');
+  return commit(tx, async () => {
+    const job = await tx.store.get(id);
+    if (job === undefined) throw new Error(`no job ${id}`);
+    const next: Job = { ...job, updatedAt: laterOf(job.updatedAt, at), edits: { ...job.edits } };
+    for (const field of Object.keys(patch) as JobField[]) {
+      const value = patch[field];
+      if (value === undefined) delete next[field];
+      else (next as unknown as Record<string, unknown>)[field] = value;
+      next.edits[field] = at;
+    }
+    if ('status' in patch) {
+      if (patch.status === 'finished') next.finishedAt = at;
+      else delete next.finishedAt;
+    }
+    await tx.store.put(next);
+    return next;
+  });
+}
+
 /** Marks a job as changed now (a reading was added) without editing any of its fields. */
 export async function touchJob(db: Database, id: string, at: IsoTime = nowIso()): Promise<void> {
   const tx = db.transaction('jobs', 'readwrite');

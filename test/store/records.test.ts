@@ -22,6 +22,7 @@ import {
   readingsForJob,
   requestPersistentStorage,
   setJobField,
+  setJobFields,
   updateSettings,
   DEFAULT_SETTINGS,
 } from '../../src/store';
@@ -201,5 +202,19 @@ describe('storage errors', () => {
     expect(asked).toBe(1);
     const broken = { persisted: async () => { throw new Error('no'); } } as unknown as StorageManager;
     expect(await requestPersistentStorage(broken)).toBe(false);
+  });
+});
+
+describe('several job fields at once', () => {
+  it('writes the supply and its nameplate in one edit, stamping both', async () => {
+    const db2 = await openFresh();
+    const job = await createJob(db2, newJob, '2026-03-02T09:00:00.000Z');
+    const supply = { topology: 'bridge' as const, source: { vrms: 13, hz: 50 }, load: { amps: 0.5 } };
+    await setJobFields(db2, job.id, { supply, nameplate: { region: 'en-230', secondaryVolts: 12 } }, '2026-03-02T09:30:00.000Z');
+    const stored = await getJob(db2, job.id);
+    expect(stored?.supply).toEqual(supply);
+    expect(stored?.nameplate?.secondaryVolts).toBe(12);
+    expect([stored?.edits.supply, stored?.edits.nameplate]).toEqual(['2026-03-02T09:30:00.000Z', '2026-03-02T09:30:00.000Z']);
+    db2.close();
   });
 });
