@@ -1,8 +1,12 @@
 import { EXIT_FAILED, EXIT_OK, EXIT_USAGE, UsageError, writeText, type CliIo, type Command } from './command';
+import { checkCommand } from './check';
+import { csvCommand } from './csv';
+import { demoCommand } from './demo';
 import { expectCommand } from './expect';
+import { mergeCommand } from './merge';
 
 /** Every subcommand, in the order `--help` lists them. A new subcommand is one module plus one entry here. */
-export const COMMANDS: readonly Command[] = [expectCommand];
+export const COMMANDS: readonly Command[] = [expectCommand, checkCommand, mergeCommand, csvCommand, demoCommand];
 
 function findCommand(name: string): Command | undefined {
   return COMMANDS.find((command) => command.name === name);
