@@ -13,3 +13,15 @@ export { mergePayloads, type MergeSource, type MergeResult, type MergeCounts, ty
 export { sortPayload } from './order';
 export { csvRecords, toCsv, neutraliseFormula, restoreFormula, quoteField, CSV_HEADERS, CSV_NUMERIC_HEADERS, READING_UNITS, type CsvOptions } from './csv';
 export { importJobFiles, MemoryImportStore, type ImportStore, type ImportTransaction, type ImportFile, type FileImportReport, type ImportOptions, type PayloadIds } from './import';
+export {
+  buildReviewIndex,
+  filterJobs,
+  jobDate,
+  faultsByMonth,
+  firstVisitFixRate,
+  timeOnJobByTechnician,
+  partsUsed,
+  assetReadingSeries,
+  type ReviewFilter,
+  type ReviewIndex,
+} from './review';
