@@ -29,6 +29,7 @@ import {
   describeType,
   INVALID,
   isoTime,
+  reportUnknownKeys,
   type Check,
 } from './schema';
 
@@ -46,6 +47,7 @@ export type ReadResult =
 const HEX64 = /^[0-9a-f]{64}$/;
 const ENVELOPE_KEYS = new Set(['format', 'schemaVersion', 'exportedAt', 'exportedBy', 'payload', 'sha256']);
 const PAYLOAD_KEYS = ['assets', 'conflicts', 'jobs', 'readings', 'recordConflicts', 'technicians'] as const;
+const PAYLOAD_KEY_SET: ReadonlySet<string> = new Set(PAYLOAD_KEYS);
 
 function refuse(name: string, message: string, field?: string): ReadResult {
   const problem: ExchangeProblem = { file: name, message };
@@ -162,13 +164,7 @@ export function checkPayload(value: unknown, c: Checker): JobPayload | undefined
       return undefined;
     }
     const raw = value as Record<string, unknown>;
-    for (const key of Object.keys(raw)) {
-      if (!(PAYLOAD_KEYS as readonly string[]).includes(key)) {
-        c.enter(key);
-        c.fail(`unknown field "${key.slice(0, 60)}"`);
-        c.leave();
-      }
-    }
+    reportUnknownKeys(raw, PAYLOAD_KEY_SET, c);
     const list = (key: (typeof PAYLOAD_KEYS)[number], check: Check, label: string, maxItems: number, jobIdOf: (r: Record<string, unknown>) => unknown) => {
       if (Object.hasOwn(raw, key)) return checkRecords(raw[key], check, c, key, label, maxItems, jobIdOf);
       c.enter(key);
@@ -292,13 +288,7 @@ export async function readJobFile(content: FileContent, name: string): Promise<R
   const envelope = parsed as Record<string, unknown>;
 
   const c = new Checker(name);
-  for (const key of Object.keys(envelope)) {
-    if (!ENVELOPE_KEYS.has(key)) {
-      c.enter(key);
-      c.fail(`unknown field "${key.slice(0, 60)}"`);
-      c.leave();
-    }
-  }
+  reportUnknownKeys(envelope, ENVELOPE_KEYS, c);
   c.enter('exportedAt');
   const exportedAt = isoTime(envelope.exportedAt, c);
   c.leave();

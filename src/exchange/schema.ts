@@ -131,7 +131,7 @@ const ISO_PATTERN = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/;
 
 export const isoTime: Check = (value, c) => {
   if (typeof value !== 'string') return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${describeType(value)}`);
-  if (!ISO_PATTERN.test(value) || new Date(value).toISOString() !== value) {
+  if (!ISO_PATTERN.test(value) || !Number.isFinite(Date.parse(value)) || new Date(value).toISOString() !== value) {
     return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${JSON.stringify(value.slice(0, 40))}`);
   }
   return value;
@@ -215,11 +215,17 @@ function isPlainRecord(value: unknown): value is Record<string, unknown> {
   return typeof value === 'object' && value !== null && !Array.isArray(value);
 }
 
-function reportUnknownKeys(value: Record<string, unknown>, known: ReadonlySet<string>, c: Checker): void {
+/** Why a member name is refused: prototype-polluting names get their own words. */
+export function unknownFieldMessage(key: string): string {
+  return POLLUTING_KEYS.has(key) ? `"${key}" is not allowed as a field name` : `unknown field "${key.slice(0, 60)}"`;
+}
+
+/** Reports every member of `value` whose name is not in `known`. */
+export function reportUnknownKeys(value: Record<string, unknown>, known: ReadonlySet<string>, c: Checker): void {
   for (const key of Object.keys(value)) {
     if (known.has(key)) continue;
     c.enter(key);
-    c.fail(POLLUTING_KEYS.has(key) ? `"${key}" is not allowed as a field name` : `unknown field "${key.slice(0, 60)}"`);
+    c.fail(unknownFieldMessage(key));
     c.leave();
   }
 }
