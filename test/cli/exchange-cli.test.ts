@@ -83,7 +83,7 @@ describe('ripplewright merge', () => {
     expect(payload.jobs.find((j) => j.id === 'job-a')!.complaint).toBe('Resets when the drum turns');
     expect(payload.conflicts).toHaveLength(1);
     expect(result.file.exportedAt).toBe(T3);
-    expect(io.stderr.text).toMatch(/merged 3 files: 3 jobs, 9 readings \(17 duplicate copies dropped\)/);
+    expect(io.stderr.text).toMatch(/merged 3 files: 3 jobs, 9 readings \(16 duplicate copies dropped\)/);
     expect(io.stderr.text).toMatch(/job job-a complaint: kept "Resets when the drum turns"/);
   });
 
