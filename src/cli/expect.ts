@@ -1,8 +1,7 @@
 import { createReadStream } from 'node:fs';
 import { readFile } from 'node:fs/promises';
-import { createInterface } from 'node:readline';
 import type { Readable, Writable } from 'node:stream';
-import { expectReadings, SpecError } from '../engine';
+import { expectReadings } from '../engine';
 import type { SolveOptions, SupplyResult } from '../engine/types';
 import {
   EXIT_FAILED,
@@ -14,6 +13,9 @@ import {
   type CliIo,
   type Command,
 } from './command';
+import { describeFailure, describeReadError, jsonLinesBatch, type BatchSummary } from './json-lines';
+
+export type { BatchErrorLine, BatchSummary } from './json-lines';
 
 /** The engine call the command makes; tests pass the real one, the seam keeps the loop testable. */
 export type ExpectReadings = (input: unknown, options?: SolveOptions) => SupplyResult;
@@ -26,20 +28,6 @@ export interface ExpectArgs {
   /** Waveform samples to include in each result; undefined for none. */
   waveformPoints: number | undefined;
   help: boolean;
-}
-
-/** What a failed batch line prints in place of a result. */
-export interface BatchErrorLine {
-  error: string;
-  /** 1-based input line number. */
-  line: number;
-  /** SpecError field path, when the spec was at fault. */
-  field?: string;
-}
-
-export interface BatchSummary {
-  lines: number;
-  failed: number;
 }
 
 // Enough for a smooth plot of one period; more only bloats the JSON.
@@ -99,23 +87,8 @@ function parseWaveformPoints(text: string | undefined): number | undefined {
   return points;
 }
 
-/** Why one spec failed, in words; SpecError messages pass through unchanged. */
-function describeFailure(error: unknown): { message: string; field?: string } {
-  if (error instanceof SpecError) return { message: error.message, field: error.field };
-  if (error instanceof SyntaxError) return { message: `not valid JSON (${error.message})` };
-  return { message: `solver failed: ${error instanceof Error ? error.message : String(error)}` };
-}
-
 function solveText(text: string, expect: ExpectReadings, options: SolveOptions): SupplyResult {
   return expect(JSON.parse(text) as unknown, options);
-}
-
-function describeReadError(error: unknown): string {
-  const code = (error as { code?: unknown }).code;
-  if (code === 'ENOENT') return 'no such file';
-  if (code === 'EACCES' || code === 'EPERM') return 'permission denied';
-  if (code === 'EISDIR') return 'is a directory';
-  return error instanceof Error ? error.message : String(error);
 }
 
 function solveOptionsFrom(args: ExpectArgs): SolveOptions {
@@ -137,29 +110,15 @@ export async function expectBatch(
   options: SolveOptions = {},
   warnings?: Writable,
 ): Promise<BatchSummary> {
-  const lines = createInterface({ input, crlfDelay: Infinity });
-  let lineNumber = 0;
-  let failed = 0;
-  for await (const line of lines) {
-    lineNumber += 1;
-    let answer: SupplyResult | BatchErrorLine;
-    if (line.trim() === '') {
-      answer = { error: `line ${lineNumber}: blank line; expected one spec JSON object`, line: lineNumber };
-    } else {
-      try {
-        answer = solveText(line, expect, options);
-        if (!answer.converged && warnings) {
-          await writeText(warnings, `ripplewright expect: line ${lineNumber}: ${convergenceWarning(answer)}\n`);
-        }
-      } catch (error) {
-        const { message, field } = describeFailure(error);
-        answer = { error: `line ${lineNumber}: ${message}`, line: lineNumber, ...(field === undefined ? {} : { field }) };
-      }
-    }
-    if ('error' in answer) failed += 1;
-    await writeText(output, `${JSON.stringify(answer)}\n`);
-  }
-  return { lines: lineNumber, failed };
+  return jsonLinesBatch(
+    input,
+    output,
+    (value) => expect(value, options),
+    'spec',
+    (result) => (result.converged ? null : convergenceWarning(result)),
+    warnings,
+    'ripplewright expect',
+  );
 }
 
 function convergenceWarning(result: SupplyResult): string {

@@ -2,11 +2,12 @@ import { EXIT_FAILED, EXIT_OK, EXIT_USAGE, UsageError, writeText, type CliIo, ty
 import { checkCommand } from './check';
 import { csvCommand } from './csv';
 import { demoCommand } from './demo';
+import { diagnoseCommand } from './diagnose';
 import { expectCommand } from './expect';
 import { mergeCommand } from './merge';
 
 /** Every subcommand, in the order `--help` lists them. A new subcommand is one module plus one entry here. */
-export const COMMANDS: readonly Command[] = [expectCommand, checkCommand, mergeCommand, csvCommand, demoCommand];
+export const COMMANDS: readonly Command[] = [expectCommand, diagnoseCommand, checkCommand, mergeCommand, csvCommand, demoCommand];
 
 function findCommand(name: string): Command | undefined {
   return COMMANDS.find((command) => command.name === name);

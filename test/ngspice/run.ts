@@ -242,6 +242,11 @@ export interface ReferenceMeasures {
   loadAmps: number;
   diodes: ReferenceDiode[];
   regulated?: ReferenceRegulated;
+  /**
+   * The last period resampled at WAVEFORM_POINTS evenly spaced instants (end excluded), for the
+   * meter model: output, secondary terminals, regulated output when there is one.
+   */
+  waveform: { vOut: Float64Array; vSecondary: Float64Array; vRegulated?: Float64Array };
   /** How the steady state was reached. */
   run: {
     periods: number;
@@ -277,7 +282,7 @@ function measureWindow(
   samples: NgspiceSamples,
   t0: number,
   t1: number,
-): Omit<ReferenceMeasures, 'run'> {
+): Omit<ReferenceMeasures, "run" | "waveform"> {
   const { time, columns } = samples;
   const zero = new Float64Array(time.length);
   const v = (nodeName: string): Column => {
@@ -313,7 +318,7 @@ function measureWindow(
     };
   });
   const outputCurrent = i(probes.outputSense);
-  const result: Omit<ReferenceMeasures, 'run'> = {
+  const result: Omit<ReferenceMeasures, "run" | "waveform"> = {
     dc: out.mean,
     ripplePp: out.max - out.min,
     rippleRms: out.acRms,
@@ -426,6 +431,7 @@ export function referenceMeasures(spec: SupplySpec, options: ReferenceOptions = 
     if (integralChange <= tolerance && extremeChange <= extremeTolerance && remaining <= tolerance * vm * 0.1) {
       return {
         ...last,
+        waveform: lastPeriodWaveform(probes, run.samples, stop - period, period),
         run: {
           periods,
           ngspiceRuns: runs,
@@ -445,6 +451,23 @@ export function referenceMeasures(spec: SupplySpec, options: ReferenceOptions = 
     chunk = Math.min(chunk * 2, maxPeriods - periods, 400);
     chunk = Math.max(chunk, 4);
   }
+}
+
+/** Points per period in `ReferenceMeasures.waveform`. */
+export const WAVEFORM_POINTS = 256;
+
+function lastPeriodWaveform(probes: CircuitProbes, samples: NgspiceSamples, t0: number, period: number): ReferenceMeasures['waveform'] {
+  const col = (node: string): Float64Array => (node === '0' ? new Float64Array(samples.time.length) : samples.columns.get(`v(${node})`)!);
+  const at = (y: Float64Array): Float64Array => {
+    const out = new Float64Array(WAVEFORM_POINTS);
+    for (let p = 0; p < WAVEFORM_POINTS; p++) out[p] = interpolate(samples.time, y, t0 + (p / WAVEFORM_POINTS) * period);
+    return out;
+  };
+  const plus = col(probes.secondary.plus);
+  const minus = col(probes.secondary.minus);
+  const w: ReferenceMeasures['waveform'] = { vOut: at(col('p')), vSecondary: at(plus.map((x, k) => x - minus[k]!)) };
+  if (probes.regulator) w.vRegulated = at(col(probes.regulator.out));
+  return w;
 }
 
 function interpolate(t: Float64Array, y: Float64Array, tt: number): number {

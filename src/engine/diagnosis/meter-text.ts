@@ -49,7 +49,7 @@ export function parseMeterText(text: string, unit: MeterUnit, assumedPrefix = ''
   if (!m) return { ok: false, message: `"${raw}" is not a number` };
   const [, sign, digits, exponent, restRaw] = m;
   const rest = (restRaw ?? '').trim();
-  if (/\d[.,]\d{3}[.,]/.test(raw) || /[.,].*[.,]/.test(digits ?? '')) {
+  if (/\d[.,]\d{3}[.,]/.test(raw) || /[.,].*[.,]/.test(digits ?? '') || /^[.,]\d/.test(rest)) {
     return { ok: false, message: `"${raw}" has more than one decimal separator` };
   }
   let value = Number((digits ?? '').replace(',', '.'));
