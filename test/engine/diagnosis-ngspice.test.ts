@@ -94,7 +94,9 @@ function faulted(unit: Unit, fault: Fault): { spec: SupplySpecInput; lineFactor:
       s.source.vrms *= 1.17;
       return { spec: s, lineFactor: 1.17 };
     case 'diode-open':
-      s.diodeCondition = { [s.topology === 'half-wave' ? 'D1' : 'D2']: 'open' };
+      // On a doubler an open D2 leaves the winding with no DC path (only leakage sets its
+      // level, and a transient never settles): D1 there.
+      s.diodeCondition = { [s.topology === 'half-wave' || s.topology === 'doubler' ? 'D1' : 'D2']: 'open' };
       return { spec: s, lineFactor: 1 };
     case 'diode-short':
       s.diodeCondition = { D1: 'short' };

@@ -191,7 +191,7 @@ export function faultVariants(spec: SupplySpec, mains: MainsBand): FaultVariant[
     add(
       'capacitor-low',
       groups.flatMap((g) =>
-        [0.5, 0.3, 0.15, 0.05].map((f) => {
+        [0.5, 0.22, 0.05].map((f) => {
           const s = clone(spec);
           const factors = [...okCaps];
           const esrs = [...esr];
@@ -222,7 +222,7 @@ export function faultVariants(spec: SupplySpec, mains: MainsBand): FaultVariant[
       groups.flatMap((g) =>
         // From where the ESR starts to show in the live readings to a nearly open part; a mildly
         // raised ESR looks healthy from outside and is left to the ESR meter.
-        [8, 20, 50, 120].map((m) => {
+        [8, 30, 120].map((m) => {
           const s = clone(spec);
           const esrs = [...esr];
           for (const q of g) {

@@ -35,7 +35,8 @@ export interface ResolvedTolerances {
 /**
  * Defaults (DOMAIN.md §4–6): capacitor ±20 % (IEC 60062 letter M) with 10 % more allowed below
  * for ageing (our choice), load ±20 % and winding resistance ±15 % (our choices: relays switching,
- * copper warming), transformer ratio ±5 % (common practice, from memory), 48 samples, seed 1.
+ * copper warming), transformer ratio ±5 % (common practice, from memory), 32 samples (a Latin
+ * hypercube covers each tolerance's range evenly with few), seed 1.
  */
 export function resolveTolerances(t: ToleranceSettings | undefined): ResolvedTolerances {
   return {
@@ -44,7 +45,7 @@ export function resolveTolerances(t: ToleranceSettings | undefined): ResolvedTol
     loadFraction: t?.loadFraction ?? 0.2,
     windingFraction: t?.windingFraction ?? 0.15,
     ratioFraction: 0.05,
-    samples: Math.max(8, Math.min(400, Math.round(t?.samples ?? 48))),
+    samples: Math.max(8, Math.min(400, Math.round(t?.samples ?? 32))),
     seed: Math.round(t?.seed ?? 1),
   };
 }

@@ -334,8 +334,12 @@ function nextReading(
   const prior = new Float64Array(faults.length);
   variants.forEach((_, i) => (prior[faultIndex[i]!] = prior[faultIndex[i]!]! + post[i]!));
   const h0 = entropyBits(prior);
-  // Only variants that still matter take part (speed); their weights are renormalised.
-  const live = variants.map((_, i) => i).filter((i) => post[i]! > 1e-4);
+  // Only variants that still matter take part (speed): the 40 most probable above 1e-4.
+  const live = variants
+    .map((_, i) => i)
+    .filter((i) => post[i]! > 1e-4)
+    .sort((a, b) => post[b]! - post[a]!)
+    .slice(0, 40);
   let best: { c: { kind: ReadingKind; target?: string }; gain: number; score: number } | null = null;
   for (const c of candidates(model, readings)) {
     const preds = live.map((i) => predictiveFor(model, spread, gaussians[i]!, variants[i]!, c, observed));
