@@ -38,8 +38,13 @@ export function encodeUtf8(text: string): Uint8Array {
 /**
  * Strict UTF-8 decoding: returns the text, or throws a TypeError when the bytes are not UTF-8
  * (a damaged file). A leading byte-order mark is kept for the caller to strip.
+ *
+ * Decodes leniently first (the fast path in V8 and Node) and repeats strictly only when the text
+ * holds U+FFFD, which is either in the file or stands for bytes that were not UTF-8.
  */
 export function decodeUtf8Strict(bytes: Uint8Array): string {
+  const text = new web.TextDecoder('utf-8', { fatal: false, ignoreBOM: true }).decode(bytes);
+  if (!text.includes('\uFFFD')) return text;
   return new web.TextDecoder('utf-8', { fatal: true, ignoreBOM: true }).decode(bytes);
 }
 
@@ -48,9 +53,14 @@ export function decodeUtf8Strict(bytes: Uint8Array): string {
  * Throws when the runtime has no WebCrypto (Node before 19 without the flag; an insecure page).
  */
 export async function sha256Hex(text: string): Promise<string> {
+  return sha256HexOfBytes(encodeUtf8(text));
+}
+
+/** Lowercase hex SHA-256 of bytes, by WebCrypto (see sha256Hex). */
+export async function sha256HexOfBytes(bytes: Uint8Array): Promise<string> {
   const subtle = web.crypto?.subtle;
   if (subtle === undefined) throw new Error('this runtime has no WebCrypto (crypto.subtle) to compute SHA-256');
-  const digest = new Uint8Array(await subtle.digest('SHA-256', encodeUtf8(text)));
+  const digest = new Uint8Array(await subtle.digest('SHA-256', bytes));
   let hex = '';
   for (const byte of digest) hex += byte.toString(16).padStart(2, '0');
   return hex;

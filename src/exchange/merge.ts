@@ -110,22 +110,61 @@ function readingKey(reading: Reading, id = reading.id): string {
 
 /** The id a reading was first given: strips a variant suffix that matches its content. */
 function baseReadingId(reading: Reading): string {
-  if (!reading.id.includes('~') || !VARIANT_SUFFIX.test(reading.id)) return reading.id;
-  const base = reading.id.slice(0, -17);
-  return `${base}~${fnv1a64Hex(readingKey(reading, base))}` === reading.id ? base : reading.id;
+  const id = reading.id;
+  // "~" 17 characters from the end, then 16 hex digits: a renamed copy, if the digits match.
+  if (id.length <= 17 || id.charCodeAt(id.length - 17) !== 0x7e || !VARIANT_SUFFIX.test(id)) return id;
+  const base = id.slice(0, -17);
+  return `${base}~${fnv1a64Hex(readingKey(reading, base))}` === id ? base : id;
 }
 
-function group<T>(sources: { source: MergeSource; fromBase: boolean }[], list: (payload: JobPayload) => T[], key: (record: T) => string) {
-  const groups = new Map<string, Version<T>[]>();
-  for (const { source, fromBase } of sources) {
-    for (const record of list(source.payload)) {
-      const id = key(record);
-      const versions = groups.get(id);
-      if (versions) versions.push({ record, source, fromBase });
-      else groups.set(id, [{ record, source, fromBase }]);
-    }
+interface Tagged {
+  source: MergeSource;
+  fromBase: boolean;
+}
+
+/**
+ * Records of all sources grouped by key. A group of one (the common case) is stored as a number
+ * (source index · 2^24 + record index, 2^24 being above LIMITS.readings) rather than an object,
+ * so half a million readings cost no allocation; larger groups are arrays of those numbers.
+ */
+const SOURCE_STRIDE = 2 ** 24;
+
+class Groups<T> {
+  readonly byKey = new Map<string, number | number[]>();
+
+  constructor(
+    private readonly sources: readonly Tagged[],
+    private readonly list: (payload: JobPayload) => T[],
+    key: (record: T) => string,
+  ) {
+    sources.forEach(({ source }, s) => {
+      const records = list(source.payload);
+      for (let i = 0; i < records.length; i++) {
+        const id = key(records[i]!);
+        const code = s * SOURCE_STRIDE + i;
+        const entry = this.byKey.get(id);
+        if (entry === undefined) this.byKey.set(id, code);
+        else if (typeof entry === 'number') this.byKey.set(id, [entry, code]);
+        else entry.push(code);
+      }
+    });
   }
-  return groups;
+
+  record(code: number): T {
+    return this.list(this.sources[Math.floor(code / SOURCE_STRIDE)]!.source.payload)[code % SOURCE_STRIDE]!;
+  }
+
+  version(code: number): Version<T> {
+    const tagged = this.sources[Math.floor(code / SOURCE_STRIDE)]!;
+    return { record: this.record(code), source: tagged.source, fromBase: tagged.fromBase };
+  }
+
+  /** Each group's merged record, in first-seen order. */
+  merged(merge: (versions: Version<T>[], key: string) => T): T[] {
+    const out: T[] = [];
+    for (const [key, entry] of this.byKey) out.push(typeof entry === 'number' ? this.record(entry) : merge(entry.map((code) => this.version(code)), key));
+    return out;
+  }
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -276,10 +315,6 @@ function mergeFlatRecord<T extends { id: string }>(
 // ---------------------------------------------------------------------------------------------
 
 function mergeReadingGroup(baseId: string, versions: Version<Reading>[], out: Reading[], clashes: ReadingClash[]): number {
-  if (versions.length === 1) {
-    out.push(versions[0]!.record);
-    return 0;
-  }
   // Distinct contents, each as it reads under the base id.
   const contents = new Map<string, { reading: Reading; fromBase: boolean; sources: Set<string> }>();
   for (const { record, source, fromBase } of versions) {
@@ -339,22 +374,35 @@ export function mergePayloads(sources: readonly MergeSource[], options: { base?:
   const basePayload = options.base?.payload;
 
   const foundConflicts: MergeConflict[] = [];
-  const jobs: Job[] = [];
-  for (const versions of group(all, (p) => p.jobs, (job) => job.id).values()) jobs.push(mergeJob(versions, foundConflicts));
-
   const foundRecordConflicts: RecordConflict[] = [];
-  const assets = [...group(all, (p) => p.assets, (asset) => asset.id).values()].map((versions) =>
-    mergeFlatRecord(versions, 'asset', ASSET_FIELDS, foundRecordConflicts),
-  );
-  const technicians = [...group(all, (p) => p.technicians, (technician) => technician.id).values()].map((versions) =>
-    mergeFlatRecord(versions, 'technician', ['name'], foundRecordConflicts),
-  );
-
-  const readings: Reading[] = [];
   const readingClashes: ReadingClash[] = [];
+  let jobs: Job[];
+  let assets: JobPayload['assets'];
+  let technicians: JobPayload['technicians'];
+  let readings: Reading[];
   let duplicateReadings = 0;
-  for (const [baseId, versions] of group(all, (p) => p.readings, baseReadingId)) {
-    duplicateReadings += mergeReadingGroup(baseId, versions, readings, readingClashes);
+  const only = all.length === 1 ? all[0]!.source.payload : undefined;
+  if (only && !only.readings.some((reading) => baseReadingId(reading) !== reading.id)) {
+    // One consistent source (a first import): its ids are unique and nothing can collide.
+    ({ jobs, assets, technicians, readings } = only);
+  } else {
+    jobs = new Groups(all, (p) => p.jobs, (job) => job.id).merged((versions) => mergeJob(versions, foundConflicts));
+    assets = new Groups(all, (p) => p.assets, (asset) => asset.id).merged((versions) =>
+      mergeFlatRecord(versions, 'asset', ASSET_FIELDS, foundRecordConflicts),
+    );
+    technicians = new Groups(all, (p) => p.technicians, (technician) => technician.id).merged((versions) =>
+      mergeFlatRecord(versions, 'technician', ['name'], foundRecordConflicts),
+    );
+    const readingGroups = new Groups(all, (p) => p.readings, baseReadingId);
+    readings = [];
+    for (const [baseId, entry] of readingGroups.byKey) {
+      if (typeof entry === 'number') {
+        // One reading under this id: kept as it is (a renamed copy keeps its name).
+        readings.push(readingGroups.record(entry));
+      } else {
+        duplicateReadings += mergeReadingGroup(baseId, entry.map((code) => readingGroups.version(code)), readings, readingClashes);
+      }
+    }
   }
 
   const knownConflicts = unionConflicts(
@@ -394,7 +442,19 @@ export function mergePayloads(sources: readonly MergeSource[], options: { base?:
   return { payload, changes, newConflicts, newRecordConflicts, readingClashes, counts };
 }
 
-function compareWithBase(payload: JobPayload, base: JobPayload | undefined, duplicates: number) {
+function compareWithBase(payload: JobPayload, base: JobPayload | undefined, duplicates: number): { changes: JobPayload; counts: MergeCounts } {
+  if (base === undefined) {
+    const added = (n: number) => ({ added: n, updated: 0, unchanged: 0 });
+    return {
+      changes: payload,
+      counts: {
+        jobs: added(payload.jobs.length),
+        readings: { added: payload.readings.length, duplicates },
+        assets: added(payload.assets.length),
+        technicians: added(payload.technicians.length),
+      },
+    };
+  }
   const changedRecords = <T extends { id: string }>(merged: T[], before: T[] | undefined) => {
     const byId = new Map((before ?? []).map((record) => [record.id, record] as const));
     const changed: T[] = [];

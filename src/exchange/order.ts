@@ -41,22 +41,59 @@ function compareRecordConflicts(a: RecordConflict, b: RecordConflict): number {
  */
 export function sortPayload(payload: JobPayload): JobPayload {
   const jobs = [...payload.jobs].sort(compareJobs);
-  const jobIndex = new Map<string, number>();
-  jobs.forEach((job, i) => jobIndex.set(job.id, i));
-  const orphan = jobs.length;
-  const readings = [...payload.readings].sort(
-    (a: Reading, b: Reading) =>
-      (jobIndex.get(a.jobId) ?? orphan) - (jobIndex.get(b.jobId) ?? orphan) ||
-      compareText(a.jobId, b.jobId) ||
-      compareText(a.takenAt, b.takenAt) ||
-      compareText(a.id, b.id),
-  );
   return {
     jobs,
-    readings,
+    readings: sortReadings(payload.readings, jobs),
     assets: [...payload.assets].sort((a, b) => compareText(a.id, b.id)),
     technicians: [...payload.technicians].sort((a, b) => compareText(a.id, b.id)),
     conflicts: [...payload.conflicts].sort(compareConflicts),
     recordConflicts: [...payload.recordConflicts].sort(compareRecordConflicts),
   };
+}
+
+const compareReadingsInJob = (a: Reading, b: Reading): number =>
+  compareText(a.jobId, b.jobId) || compareText(a.takenAt, b.takenAt) || compareText(a.id, b.id);
+
+/**
+ * Readings in job order, then by (takenAt, id): a counting sort by job (one map lookup per
+ * reading, no per-job arrays), then a sort of each job's few readings.
+ */
+function sortReadings(readings: readonly Reading[], jobs: readonly Job[]): Reading[] {
+  const jobIndex = new Map<string, number>();
+  jobs.forEach((job, i) => jobIndex.set(job.id, i));
+  const buckets = jobs.length + 1; // the last holds readings of jobs not in the payload
+  const bucketOf = new Int32Array(readings.length);
+  const starts = new Int32Array(buckets + 1);
+  readings.forEach((reading, i) => {
+    const bucket = jobIndex.get(reading.jobId) ?? jobs.length;
+    bucketOf[i] = bucket;
+    starts[bucket + 1]! += 1;
+  });
+  for (let b = 0; b < buckets; b++) starts[b + 1]! += starts[b]!;
+  const next = starts.slice(0, buckets);
+  const out: Reading[] = new Array(readings.length);
+  readings.forEach((reading, i) => {
+    out[next[bucketOf[i]!]!++] = reading;
+  });
+  for (let b = 0; b < buckets; b++) {
+    const start = starts[b]!;
+    const end = starts[b + 1]!;
+    if (end - start < 2) continue;
+    if (end - start > 32) {
+      const sorted = out.slice(start, end).sort(compareReadingsInJob);
+      for (let i = start; i < end; i++) out[i] = sorted[i - start]!;
+      continue;
+    }
+    // Insertion sort: a job has a handful of readings, usually already in order.
+    for (let i = start + 1; i < end; i++) {
+      const reading = out[i]!;
+      let j = i - 1;
+      while (j >= start && compareReadingsInJob(out[j]!, reading) > 0) {
+        out[j + 1] = out[j]!;
+        j -= 1;
+      }
+      out[j + 1] = reading;
+    }
+  }
+  return out;
 }

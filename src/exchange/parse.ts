@@ -6,7 +6,7 @@
  * records; the SHA-256 digest. When records are refused, the digest is still computed over what
  * was parsed, so the report can say whether the file was damaged after export or exported wrong.
  */
-import { canonicalJson, decodeUtf8Strict, sha256Hex } from './canonical';
+import { canonicalJson, decodeUtf8Strict, sha256Hex, sha256HexOfBytes } from './canonical';
 import {
   FORMAT_ID,
   LIMITS,
@@ -17,7 +17,6 @@ import {
   type JobPayload,
 } from './format';
 import {
-  arrayOf,
   Checker,
   checkAsset,
   checkConflict,
@@ -127,30 +126,43 @@ function checkRecords(
   key: (typeof PAYLOAD_KEYS)[number],
   label: string,
   maxItems: number,
-  jobIdOf: (item: Record<string, unknown>) => unknown,
+  jobIdKey: 'id' | 'jobId' | undefined,
 ): unknown[] | undefined {
   c.enter(key);
-  const listCheck = arrayOf(
-    (item, checker) => {
-      const raw = typeof item === 'object' && item !== null ? (item as Record<string, unknown>) : {};
-      const itemId = Object.hasOwn(raw, 'id') ? raw.id : undefined;
-      const jobId = jobIdOf(raw);
-      checker.record = typeof itemId === 'string' ? `${label} ${itemId.slice(0, 100)}` : undefined;
-      checker.jobId = typeof jobId === 'string' ? jobId.slice(0, 100) : undefined;
-      const checked = check(item, checker);
-      checker.record = undefined;
-      checker.jobId = undefined;
-      return checked;
-    },
-    maxItems,
-    `${label}s`,
-  );
-  const out = listCheck(list, c);
-  c.leave();
-  return out === INVALID ? undefined : (out as unknown[]);
+  try {
+    if (!Array.isArray(list)) {
+      c.fail(`expected a list of ${label}s, got ${describeType(list)}`);
+      return undefined;
+    }
+    if (list.length > maxItems) {
+      c.fail(`too many ${label}s (${list.length}; at most ${maxItems})`);
+      return undefined;
+    }
+    const out: unknown[] | undefined = c.copy ? new Array(list.length) : undefined;
+    let ok = true;
+    c.recordKind = label;
+    for (let i = 0; i < list.length; i++) {
+      const item: unknown = list[i];
+      // Read for messages only; the record's own check decides whether they are valid.
+      const raw = typeof item === 'object' && item !== null ? (item as Record<string, unknown>) : undefined;
+      const itemId = raw !== undefined && Object.hasOwn(raw, 'id') ? raw.id : undefined;
+      const jobId = raw !== undefined && jobIdKey !== undefined && Object.hasOwn(raw, jobIdKey) ? raw[jobIdKey] : undefined;
+      c.recordId = typeof itemId === 'string' ? itemId : undefined;
+      c.jobId = typeof jobId === 'string' ? jobId.slice(0, 100) : undefined;
+      c.enter(i);
+      const checked = check(item, c);
+      c.leave();
+      if (checked === INVALID) ok = false;
+      if (out) out[i] = checked;
+    }
+    c.recordKind = undefined;
+    c.recordId = undefined;
+    c.jobId = undefined;
+    return ok ? (out ?? list) : undefined;
+  } finally {
+    c.leave();
+  }
 }
-
-const ownValue = (raw: Record<string, unknown>, key: string): unknown => (Object.hasOwn(raw, key) ? raw[key] : undefined);
 
 /**
  * Checks a payload object (parsed from a file, or records from the store before export) and
@@ -165,19 +177,19 @@ export function checkPayload(value: unknown, c: Checker): JobPayload | undefined
     }
     const raw = value as Record<string, unknown>;
     reportUnknownKeys(raw, PAYLOAD_KEY_SET, c);
-    const list = (key: (typeof PAYLOAD_KEYS)[number], check: Check, label: string, maxItems: number, jobIdOf: (r: Record<string, unknown>) => unknown) => {
-      if (Object.hasOwn(raw, key)) return checkRecords(raw[key], check, c, key, label, maxItems, jobIdOf);
+    const list = (key: (typeof PAYLOAD_KEYS)[number], check: Check, label: string, maxItems: number, jobIdKey: 'id' | 'jobId' | undefined) => {
+      if (Object.hasOwn(raw, key)) return checkRecords(raw[key], check, c, key, label, maxItems, jobIdKey);
       c.enter(key);
       c.fail('missing (write an empty list when there are none)');
       c.leave();
       return undefined;
     };
-    const jobs = list('jobs', checkJob, 'job', LIMITS.jobs, (r) => ownValue(r, 'id'));
-    const readings = list('readings', checkReading, 'reading', LIMITS.readings, (r) => ownValue(r, 'jobId'));
-    const assets = list('assets', checkAsset, 'asset', LIMITS.assets, () => undefined);
-    const technicians = list('technicians', checkTechnician, 'technician', LIMITS.technicians, () => undefined);
-    const conflicts = list('conflicts', checkConflict, 'conflict', LIMITS.conflicts, (r) => ownValue(r, 'jobId'));
-    const recordConflicts = list('recordConflicts', checkRecordConflict, 'record conflict', LIMITS.conflicts, () => undefined);
+    const jobs = list('jobs', checkJob, 'job', LIMITS.jobs, 'id');
+    const readings = list('readings', checkReading, 'reading', LIMITS.readings, 'jobId');
+    const assets = list('assets', checkAsset, 'asset', LIMITS.assets, undefined);
+    const technicians = list('technicians', checkTechnician, 'technician', LIMITS.technicians, undefined);
+    const conflicts = list('conflicts', checkConflict, 'conflict', LIMITS.conflicts, 'jobId');
+    const recordConflicts = list('recordConflicts', checkRecordConflict, 'record conflict', LIMITS.conflicts, undefined);
     if (!jobs || !readings || !assets || !technicians || !conflicts || !recordConflicts || c.problemCount > 0) return undefined;
     // Members in sorted order: JSON.stringify of this object is canonical (see canonical.ts).
     return { assets, conflicts, jobs, readings, recordConflicts, technicians } as unknown as JobPayload;
@@ -203,10 +215,11 @@ export function checkReferences(payload: JobPayload, c: Checker): void {
   };
   const indexIds = <T extends { id: string }>(list: T[], path: string, label: string, jobIdOf: (item: T) => string | undefined) => {
     const ids = new Map<string, T>();
-    list.forEach((item, i) => {
+    for (let i = 0; i < list.length; i++) {
+      const item = list[i]!;
       if (ids.has(item.id)) fail(path, i, `the id ${item.id} appears twice in this file`, jobIdOf(item), `${label} ${item.id}`);
       else ids.set(item.id, item);
-    });
+    }
     return ids;
   };
   const jobs = indexIds(payload.jobs, 'jobs', 'job', (job) => job.id);
@@ -221,15 +234,15 @@ export function checkReferences(payload: JobPayload, c: Checker): void {
       fail('jobs', i, `names asset ${job.assetId}, which is not in the file's assets`, job.id, `job ${job.id}`);
     }
   });
-  payload.readings.forEach((reading, i) => {
-    const record = `reading ${reading.id}`;
-    if (!jobs.has(reading.jobId)) fail('readings', i, `belongs to job ${reading.jobId}, which is not in the file`, reading.jobId, record);
+  for (let i = 0; i < payload.readings.length; i++) {
+    const reading = payload.readings[i]!;
+    if (!jobs.has(reading.jobId)) fail('readings', i, `belongs to job ${reading.jobId}, which is not in the file`, reading.jobId, `reading ${reading.id}`);
     if (reading.supersedes !== undefined) {
       const old = readings.get(reading.supersedes);
-      if (old === undefined) fail('readings', i, `corrects reading ${reading.supersedes}, which is not in the file`, reading.jobId, record);
-      else if (old.jobId !== reading.jobId) fail('readings', i, `corrects reading ${reading.supersedes} of another job`, reading.jobId, record);
+      if (old === undefined) fail('readings', i, `corrects reading ${reading.supersedes}, which is not in the file`, reading.jobId, `reading ${reading.id}`);
+      else if (old.jobId !== reading.jobId) fail('readings', i, `corrects reading ${reading.supersedes} of another job`, reading.jobId, `reading ${reading.id}`);
     }
-  });
+  }
   payload.conflicts.forEach((conflict, i) => {
     if (!jobs.has(conflict.jobId)) fail('conflicts', i, `is about job ${conflict.jobId}, which is not in the file`, conflict.jobId);
   });
@@ -240,9 +253,10 @@ export function checkReferences(payload: JobPayload, c: Checker): void {
 }
 
 /**
- * The exact text the digest is computed over for a checked file: canonical JSON of the file
- * object without `sha256`. Members are in sorted order (exportedAt, exportedBy, format, payload,
- * schemaVersion) and every record was rebuilt sorted by schema.ts, so JSON.stringify is canonical.
+ * The exact text the digest is computed over, for a file whose records were copied in sorted
+ * order by schema.ts (a Checker with copies, as write.ts uses): canonical JSON of the file
+ * object without `sha256`. The envelope's members are put in sorted order here (exportedAt,
+ * exportedBy, format, payload, schemaVersion), so JSON.stringify gives the canonical text.
  */
 export function digestText(file: Omit<JobFile, 'sha256'>): string {
   const ordered = {
@@ -267,6 +281,29 @@ async function digestOfRaw(envelope: Record<string, unknown>): Promise<string | 
   }
 }
 
+const DIGEST_SUFFIX_BYTES = ',"sha256":"'.length + 64 + '"}'.length;
+
+/**
+ * The fast way to the same digest for a file as write.ts lays it out: canonical JSON with
+ * `,"sha256":"<hex>"}` last (and maybe a newline). Those bytes minus that member are the
+ * canonical text, so they are hashed as they stand, with no re-serialising. True when they
+ * match `sha256`; false means "use the definition" (a re-indented or damaged file).
+ */
+async function digestOfWrittenLayout(content: FileContent, sha256: string): Promise<boolean> {
+  // Text, or bytes behind a byte-order mark: not the written layout.
+  if (typeof content === 'string' || content[0] !== 0x7b) return false;
+  let end = content.byteLength;
+  if (content[end - 1] === 0x0a) end -= 1;
+  const start = end - DIGEST_SUFFIX_BYTES;
+  if (start <= 0) return false;
+  const suffix = `,"sha256":"${sha256}"}`;
+  for (let i = 0; i < DIGEST_SUFFIX_BYTES; i++) if (content[start + i] !== suffix.charCodeAt(i)) return false;
+  const canonical = new Uint8Array(start + 1);
+  canonical.set(content.subarray(0, start));
+  canonical[start] = 0x7d; // "}"
+  return (await sha256HexOfBytes(canonical)) === sha256;
+}
+
 /**
  * Reads one job file. `content` is the file's bytes (checked as strict UTF-8; a leading BOM is
  * ignored) or its text; `name` labels every problem. Never throws for anything in the file:
@@ -287,7 +324,7 @@ export async function readJobFile(content: FileContent, name: string): Promise<R
   if (refusal) return refusal;
   const envelope = parsed as Record<string, unknown>;
 
-  const c = new Checker(name);
+  const c = new Checker(name, false);
   reportUnknownKeys(envelope, ENVELOPE_KEYS, c);
   c.enter('exportedAt');
   const exportedAt = isoTime(envelope.exportedAt, c);
@@ -321,7 +358,10 @@ export async function readJobFile(content: FileContent, name: string): Promise<R
     exportedBy: exportedBy as ExportedBy,
     payload,
   };
-  if ((await sha256Hex(digestText(checked))) !== sha256) return refuse(name, ALTERED, 'sha256');
+  // The checked records are the parsed ones (no copies), so the definition needs the general
+  // canonicaliser; files as write.ts lays them out take the fast way.
+  const sound = (await digestOfWrittenLayout(content, sha256 as string)) || (await sha256Hex(canonicalJson(checked))) === sha256;
+  if (!sound) return refuse(name, ALTERED, 'sha256');
   return { ok: true, name, file: { ...checked, sha256: sha256 as string } };
 }
 

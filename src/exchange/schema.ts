@@ -2,13 +2,13 @@
  * The records of a job file, checked field by field.
  *
  * Each check takes an untrusted value (parsed JSON from a file, or a record from the store before
- * export) and returns a fresh copy built only from the fields the format knows, with object
- * members inserted in sorted order, or `INVALID` after reporting why. Three things follow:
- * - a key such as "__proto__" or "constructor" is reported as an unknown field and never copied,
- *   so nothing imported can reach an object's prototype;
+ * export) and returns it, or a fresh copy with object members inserted in sorted order when the
+ * Checker asks for copies (export), or `INVALID` after reporting why. Three things follow:
+ * - a key such as "__proto__" or "constructor" is refused as a field name, so no record that
+ *   passes carries one, and nothing imported can reach an object's prototype;
  * - every string, array and number is checked for type and size before it is kept (LIMITS);
- * - JSON.stringify of a checked record is its RFC 8785 canonical JSON, which is what makes the
- *   digest fast (canonical.ts).
+ * - JSON.stringify of a copied record is its RFC 8785 canonical JSON, which is what makes the
+ *   writer's digest fast (canonical.ts).
  *
  * The field tables are typed against the model (src/model/job.ts): a field added to Job, Reading,
  * Asset or Technician and not here fails to compile, and so does a required/optional mismatch.
@@ -38,11 +38,27 @@ export class Checker {
   problemCount = 0;
   /** The job being checked, for messages. */
   jobId: string | undefined;
-  /** The record being checked, in words, for messages. */
+  /** The record being checked, in words, for messages ("reading 5c1e…"). */
   record: string | undefined;
+  /**
+   * The record as a kind and an id, joined into `record` only when a problem is reported (a
+   * string built per record would cost more than the checks themselves on large files).
+   */
+  recordKind: string | undefined;
+  recordId: string | undefined;
   private readonly path: (string | number)[] = [];
 
-  constructor(readonly file: string) {}
+  /**
+   * @param file  name for messages
+   * @param copy  true: checks return fresh copies with members in sorted order (for writing,
+   *              where JSON.stringify of the copy is then canonical); false: checks return the
+   *              checked value itself (for reading: a value that passed has only known members,
+   *              so it is as safe as a copy, and half a million readings are not allocated twice)
+   */
+  constructor(
+    readonly file: string,
+    readonly copy = true,
+  ) {}
 
   enter(key: string | number): void {
     this.path.push(key);
@@ -68,7 +84,8 @@ export class Checker {
     if (this.problems.length < LIMITS.problemsListed) {
       const problem: ExchangeProblem = { file: this.file, message };
       if (this.jobId !== undefined) problem.jobId = this.jobId;
-      if (this.record !== undefined) problem.record = this.record;
+      const record = this.record ?? (this.recordKind !== undefined && this.recordId !== undefined ? `${this.recordKind} ${this.recordId.slice(0, 100)}` : undefined);
+      if (record !== undefined) problem.record = record;
       const field = this.where();
       if (field !== '') problem.field = field;
       this.problems.push(problem);
@@ -129,9 +146,27 @@ export const id: Check = (value, c) => {
 /** Exactly Date.prototype.toISOString's form, so times compare as text and survive a round trip. */
 const ISO_PATTERN = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/;
 
+const digitsAt = (text: string, start: number, count: number): number => {
+  let n = 0;
+  for (let i = start; i < start + count; i++) n = n * 10 + (text.charCodeAt(i) - 48);
+  return n;
+};
+
+/** Whether an ISO_PATTERN match names a real instant (month 1–12, day within the month, 23:59:59 at most). */
+function isRealTime(text: string): boolean {
+  const year = digitsAt(text, 0, 4);
+  const month = digitsAt(text, 5, 2);
+  const day = digitsAt(text, 8, 2);
+  if (month < 1 || month > 12 || day < 1) return false;
+  // Gregorian leap years (ISO 8601 uses the proleptic Gregorian calendar).
+  const leap = year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
+  const days = month === 2 ? (leap ? 29 : 28) : month === 4 || month === 6 || month === 9 || month === 11 ? 30 : 31;
+  return day <= days && digitsAt(text, 11, 2) <= 23 && digitsAt(text, 14, 2) <= 59 && digitsAt(text, 17, 2) <= 59;
+}
+
 export const isoTime: Check = (value, c) => {
   if (typeof value !== 'string') return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${describeType(value)}`);
-  if (!ISO_PATTERN.test(value) || !Number.isFinite(Date.parse(value)) || new Date(value).toISOString() !== value) {
+  if (value.length !== 24 || !ISO_PATTERN.test(value) || !isRealTime(value)) {
     return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${JSON.stringify(value.slice(0, 40))}`);
   }
   return value;
@@ -164,16 +199,16 @@ export function arrayOf(item: Check, maxItems: number, what = 'items'): Check {
   return (value, c) => {
     if (!Array.isArray(value)) return c.fail(`expected a list of ${what}, got ${describeType(value)}`);
     if (value.length > maxItems) return c.fail(`too many ${what} (${value.length}; at most ${maxItems})`);
-    const out: unknown[] = new Array(value.length);
+    const out: unknown[] | undefined = c.copy ? new Array(value.length) : undefined;
     let ok = true;
     for (let i = 0; i < value.length; i++) {
       c.enter(i);
       const checked = item(value[i], c);
       c.leave();
       if (checked === INVALID) ok = false;
-      out[i] = checked;
+      if (out) out[i] = checked;
     }
-    return ok ? out : INVALID;
+    return ok ? (out ?? value) : INVALID;
   };
 }
 
@@ -191,7 +226,7 @@ function tuple(items: readonly Check[]): Check {
       if (checked === INVALID) ok = false;
       out.push(checked);
     });
-    return ok ? out : INVALID;
+    return ok ? (c.copy ? out : value) : INVALID;
   };
 }
 
@@ -236,15 +271,19 @@ export function reportUnknownKeys(value: Record<string, unknown>, known: Readonl
  */
 export function object<T>(fields: FieldsOf<T>, what = 'an object'): Check {
   const table = Object.entries(fields as Record<string, Required_ | Optional_>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-  const known = new Set(table.map(([name]) => name));
+  const names = table.map(([name]) => name);
+  const checks = table.map(([, spec]) => spec.check);
+  const optional = table.map(([, spec]) => spec.optional);
+  const known = new Set(names);
   return (value, c) => {
     if (!isPlainRecord(value)) return c.fail(`expected ${what}, got ${describeType(value)}`);
     const out: Record<string, unknown> = {};
     let ok = true;
     let present = 0;
-    for (const [name, spec] of table) {
+    for (let i = 0; i < names.length; i++) {
+      const name = names[i]!;
       if (!Object.hasOwn(value, name)) {
-        if (!spec.optional) {
+        if (!optional[i]) {
           c.enter(name);
           c.fail('missing');
           c.leave();
@@ -254,17 +293,24 @@ export function object<T>(fields: FieldsOf<T>, what = 'an object'): Check {
       }
       present += 1;
       c.enter(name);
-      const checked = spec.check(value[name], c);
+      const checked = checks[i]!(value[name], c);
       c.leave();
       if (checked === INVALID) ok = false;
-      else out[name] = checked;
+      else if (c.copy) out[name] = checked;
     }
-    if (Object.keys(value).length !== present) {
+    if (countOwnKeys(value) !== present) {
       reportUnknownKeys(value, known, c);
       ok = false;
     }
-    return ok ? out : INVALID;
+    return ok ? (c.copy ? out : value) : INVALID;
   };
+}
+
+/** Own enumerable members of a parsed object, counted without building the list of names. */
+function countOwnKeys(value: Record<string, unknown>): number {
+  let count = 0;
+  for (const key in value) if (Object.hasOwn(value, key)) count += 1;
+  return count;
 }
 
 /** An object whose member names come from `keys` and whose values all pass `item`; copy sorted. */
@@ -283,13 +329,13 @@ function recordOf(keys: readonly string[], item: Check, what: string): Check {
       const checked = item(value[key], c);
       c.leave();
       if (checked === INVALID) ok = false;
-      else out[key] = checked;
+      else if (c.copy) out[key] = checked;
     }
-    if (Object.keys(value).length !== present) {
+    if (countOwnKeys(value) !== present) {
       reportUnknownKeys(value, known, c);
       ok = false;
     }
-    return ok ? out : INVALID;
+    return ok ? (c.copy ? out : value) : INVALID;
   };
 }
 
