@@ -1,0 +1,153 @@
+/**
+ * Job exchange timings: reading and merging a large job file, exporting JSON and CSV, and the
+ * review filter. Targets (issue 5, §6): import + merge of 50 000 jobs / 500 000 readings under
+ * 2 s, export of 10 000 jobs under 1 s, review filter under 100 ms, on one core.
+ *
+ * The data is the demo shop (src/exchange/demo.ts); its engine solves are cached by spec, so
+ * generating it is mostly bookkeeping, and generation is not timed.
+ *
+ * Flags: --exchange-jobs=N (default 50000) and --exchange-export-jobs=N (default 10000).
+ * Runs on its own too: `npx tsx bench/exchange.ts`.
+ */
+import { toCsv } from '../src/exchange/csv';
+import { generateDemo } from '../src/exchange/demo';
+import type { JobPayload } from '../src/exchange/format';
+import { mergePayloads } from '../src/exchange/merge';
+import { readJobFile } from '../src/exchange/parse';
+import { buildReviewIndex, filterJobs, type ReviewFilter } from '../src/exchange/review';
+import { selectForExport, writeJobFile } from '../src/exchange/write';
+import { formatTable, median, sig, type BenchContext, type BenchSection, type SectionResult } from './report';
+
+const EXPORTED_AT = '2026-11-27T17:00:00.000Z';
+
+async function timeMs<T>(work: () => Promise<T> | T): Promise<{ ms: number; value: T }> {
+  const start = performance.now();
+  const value = await work();
+  return { ms: performance.now() - start, value };
+}
+
+/** Median milliseconds over `runs` runs of `work`. */
+async function medianMs(runs: number, work: () => Promise<unknown> | unknown): Promise<number> {
+  const times: number[] = [];
+  for (let i = 0; i < runs; i++) times.push((await timeMs(work)).ms);
+  return median(times);
+}
+
+function flagNumber(context: BenchContext, name: string, fallback: number): number {
+  const text = context.flags.get(name);
+  const value = text === undefined ? NaN : Number(text);
+  return Number.isInteger(value) && value > 0 ? value : fallback;
+}
+
+const FILTERS: { name: string; filter: (payload: JobPayload) => ReviewFilter }[] = [
+  { name: 'one technician, one quarter', filter: (p) => ({ technicianIds: [p.technicians[1]!.id], from: '2026-06-01T00:00:00.000Z', to: '2026-09-01T00:00:00.000Z' }) },
+  { name: 'capacitor faults on bridges', filter: () => ({ faults: ['capacitor-low', 'capacitor-esr', 'capacitor-open'], topologies: ['bridge'] }) },
+  { name: 'customer text "laundrette"', filter: () => ({ customer: 'laundrette' }) },
+  { name: 'asset text "tag-00"', filter: () => ({ asset: 'tag-00' }) },
+];
+
+export const exchangeSection: BenchSection = {
+  key: 'exchange',
+  title: 'Job exchange: import and merge, export, review filter (one core)',
+  async run(context): Promise<SectionResult> {
+    const jobCount = flagNumber(context, 'exchange-jobs', 50_000);
+    const exportJobCount = flagNumber(context, 'exchange-export-jobs', 10_000);
+
+    const generated = await timeMs(() => generateDemo({ jobs: jobCount, seed: 2026 }));
+    const big = generated.value;
+    const bigText = await writeJobFile(big, { exportedAt: EXPORTED_AT });
+    const bigBytes = new TextEncoder().encode(bigText);
+
+    // Import: bytes → checked records (UTF-8, JSON, every field, references, SHA-256), then the
+    // merge into an empty store; and the same file again into the store that now holds it.
+    let readMs = 0;
+    let mergeMs = 0;
+    const importRuns: number[] = [];
+    let merged: JobPayload = big;
+    for (let run = 0; run < 3; run++) {
+      const read = await timeMs(() => readJobFile(bigBytes, 'big.json'));
+      if (!read.value.ok) throw new Error('the benchmark file did not read back');
+      const file = read.value.file;
+      const merge = await timeMs(() => mergePayloads([{ name: 'big.json', at: file.exportedAt, payload: file.payload }]));
+      merged = merge.value.payload;
+      importRuns.push(read.ms + merge.ms);
+      if (run === 0 || read.ms + merge.ms <= Math.min(...importRuns)) {
+        readMs = read.ms;
+        mergeMs = merge.ms;
+      }
+    }
+    const again = await timeMs(async () => {
+      const read = await readJobFile(bigBytes, 'big.json');
+      if (!read.ok) throw new Error('the benchmark file did not read back');
+      return mergePayloads([{ name: 'big.json', at: EXPORTED_AT, payload: read.file.payload }], {
+        base: { name: 'store', at: EXPORTED_AT, payload: merged },
+      });
+    });
+    if (again.value.changes.jobs.length + again.value.changes.readings.length !== 0) throw new Error('re-import changed the store');
+
+    // Export of the first exportJobCount jobs.
+    const someJobs = big.jobs.slice(0, exportJobCount).map((job) => job.id);
+    const exportSet = selectForExport(big, { kind: 'jobs', jobIds: someJobs });
+    const jsonMs = await medianMs(3, () => writeJobFile(exportSet, { exportedAt: EXPORTED_AT }));
+    const csvMs = await medianMs(3, () => toCsv(exportSet).length);
+
+    // Review: the index once, then each filter.
+    const indexMs = (await timeMs(() => buildReviewIndex(big))).ms;
+    const index = buildReviewIndex(big);
+    const filterRows = FILTERS.map(({ name, filter }) => {
+      const f = filter(big);
+      let found = 0;
+      const times: number[] = [];
+      for (let i = 0; i < 5; i++) {
+        const start = performance.now();
+        found = filterJobs(index, f).length;
+        times.push(performance.now() - start);
+      }
+      return { name, ms: median(times), found };
+    });
+
+    const importMs = readMs + mergeMs;
+    const rows: (string | number)[][] = [
+      [`read + check + digest, ${big.jobs.length} jobs / ${big.readings.length} readings (${sig(bigBytes.length / 1e6)} MB)`, sig(readMs), 'ms', ''],
+      ['merge into an empty store', sig(mergeMs), 'ms', ''],
+      ['import + merge, best of 3', sig(importMs), 'ms', importMs < 2000 ? 'under 2 s' : 'OVER 2 s'],
+      ['the same file again into the store holding it', sig(again.ms), 'ms', ''],
+      [`export JSON, ${exportSet.jobs.length} jobs / ${exportSet.readings.length} readings`, sig(jsonMs), 'ms', jsonMs < 1000 ? 'under 1 s' : 'OVER 1 s'],
+      [`export CSV, ${exportSet.readings.length} rows`, sig(csvMs), 'ms', csvMs < 1000 ? 'under 1 s' : 'OVER 1 s'],
+      [`review index over ${big.jobs.length} jobs (once)`, sig(indexMs), 'ms', ''],
+      ...filterRows.map((row) => [`filter: ${row.name} (${row.found} jobs)`, sig(row.ms), 'ms', row.ms < 100 ? 'under 100 ms' : 'OVER 100 ms']),
+    ];
+    return {
+      table: { columns: ['measure', 'time', 'unit', 'target'], rows },
+      notes: [`demo data generated in ${sig(generated.ms / 1000)} s (not timed above); node ${process.version}`],
+      json: {
+        jobs: big.jobs.length,
+        readings: big.readings.length,
+        fileMegabytes: sig(bigBytes.length / 1e6),
+        readMs: sig(readMs),
+        mergeMs: sig(mergeMs),
+        importMergeMs: sig(importMs),
+        reimportMs: sig(again.ms),
+        exportJobs: exportSet.jobs.length,
+        exportJsonMs: sig(jsonMs),
+        exportCsvMs: sig(csvMs),
+        reviewIndexMs: sig(indexMs),
+        filterMs: Object.fromEntries(filterRows.map((row) => [row.name, sig(row.ms)])),
+      },
+    };
+  },
+};
+
+// Run on its own: `npx tsx bench/exchange.ts [--exchange-jobs=N]`.
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const flags = new Map<string, string>();
+  for (const arg of process.argv.slice(2)) {
+    const m = /^--([^=]+)(?:=(.*))?$/.exec(arg);
+    if (m) flags.set(m[1]!, m[2] ?? '');
+  }
+  const result = await exchangeSection.run({ results: new Map(), flags });
+  console.log(`== ${exchangeSection.title}`);
+  if (result.table) console.log(formatTable(result.table));
+  for (const note of result.notes ?? []) console.log(note);
+  console.log(JSON.stringify(result.json));
+}
