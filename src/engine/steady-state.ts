@@ -82,6 +82,9 @@ class Stepper {
   readonly k: number;
   readonly jac: Float64Array;
   readonly rhs: Float64Array;
+  /** The step's voltage-independent Jacobian and residual offset (prepareLinear). */
+  readonly jlin: Float64Array;
+  readonly blin: Float64Array;
   readonly piv: Int32Array;
   readonly v: Float64Array;
   readonly vTry: Float64Array;
@@ -105,6 +108,8 @@ class Stepper {
     this.k = c.capacitors.length;
     this.jac = new Float64Array(this.m * this.m);
     this.rhs = new Float64Array(this.m);
+    this.jlin = new Float64Array(this.m * this.m);
+    this.blin = new Float64Array(this.m);
     this.piv = new Int32Array(this.m);
     this.v = new Float64Array(this.m);
     this.vTry = new Float64Array(this.m);
@@ -142,53 +147,72 @@ class Stepper {
   }
 
   /**
-   * Residual (currents leaving each node) and Jacobian at node voltages v and time t, with the
-   * capacitor companions already set in geq/hist.
+   * Stamps the parts of the step that do not depend on the node voltages — gmin, the windings'
+   * conductance and source current at time t, the capacitor companions, resistors and shorted
+   * diodes — once per step into jlin/blin, so each Newton iteration only adds the nonlinear ones.
+   * Call after setCompanions.
    */
-  assemble(v: Float64Array, t: number): void {
+  prepareLinear(t: number): void {
     const c = this.c;
-    this.jac.fill(0);
-    this.rhs.fill(0);
-    const out = this.scratch;
-    for (let n = 0; n < this.m; n++) {
-      this.jac[n * this.m + n] = this.jac[n * this.m + n]! + GMIN;
-      this.rhs[n] = this.rhs[n]! + GMIN * v[n]!;
-    }
+    const m = this.m;
+    const J = this.jlin;
+    const b = this.blin;
+    J.fill(0);
+    b.fill(0);
+    const g2 = (a: number, bb: number, g: number): void => {
+      if (a >= 0) J[a * m + a] = J[a * m + a]! + g;
+      if (bb >= 0) J[bb * m + bb] = J[bb * m + bb]! + g;
+      if (a >= 0 && bb >= 0) {
+        J[a * m + bb] = J[a * m + bb]! - g;
+        J[bb * m + a] = J[bb * m + a]! - g;
+      }
+    };
+    const i2 = (a: number, bb: number, i: number): void => {
+      if (a >= 0) b[a] = b[a]! + i;
+      if (bb >= 0) b[bb] = b[bb]! - i;
+    };
+    for (let n = 0; n < m; n++) J[n * m + n] = J[n * m + n]! + GMIN;
     const sinWt = Math.sin(this.omega * t);
     for (const w of c.windings) {
-      const e = w.sign * w.peakVolts * sinWt;
       const g = 1 / w.ohms;
-      const i = (this.volt(v, w.plus) - this.volt(v, w.minus) - e) * g;
-      this.stampI(w.plus, w.minus, i);
-      this.stampG(w.plus, w.minus, g);
+      g2(w.plus, w.minus, g);
+      i2(w.plus, w.minus, -w.sign * w.peakVolts * sinWt * g);
     }
-    for (let d = 0; d < c.diodes.length; d++) {
-      const el = c.diodes[d]!;
-      const vd = this.volt(v, el.anode) - this.volt(v, el.cathode);
-      if (el.shortOhms !== null) {
-        const g = 1 / el.shortOhms;
-        this.stampI(el.anode, el.cathode, vd * g);
-        this.stampG(el.anode, el.cathode, g);
-      } else if (el.junction !== null) {
-        this.vj[d] = evalJunction(el.junction, vd, this.vj[d]!, out);
-        this.stampI(el.anode, el.cathode, out[0]!);
-        this.stampG(el.anode, el.cathode, out[1]!);
-      }
-    }
+    for (const el of c.diodes) if (el.shortOhms !== null) g2(el.anode, el.cathode, 1 / el.shortOhms);
     for (let q = 0; q < this.k; q++) {
       const cap = c.capacitors[q]!;
-      const vb = this.volt(v, cap.plus) - this.volt(v, cap.minus);
-      this.stampI(cap.plus, cap.minus, this.geq[q]! * vb - this.hist[q]!);
-      this.stampG(cap.plus, cap.minus, this.geq[q]!);
+      g2(cap.plus, cap.minus, this.geq[q]!);
+      i2(cap.plus, cap.minus, -this.hist[q]!);
+    }
+    for (const sk of c.sinks) if (sk.kind === 'resistor') g2(sk.a, sk.b, 1 / sk.ohms);
+  }
+
+  /**
+   * Residual (currents leaving each node) and Jacobian at node voltages v, from the step's
+   * linear part (prepareLinear) plus the nonlinear elements.
+   */
+  assemble(v: Float64Array): void {
+    const c = this.c;
+    const m = this.m;
+    this.jac.set(this.jlin);
+    for (let i = 0; i < m; i++) {
+      let r = this.blin[i]!;
+      for (let j = 0; j < m; j++) r += this.jlin[i * m + j]! * v[j]!;
+      this.rhs[i] = r;
+    }
+    const out = this.scratch;
+    for (let d = 0; d < c.diodes.length; d++) {
+      const el = c.diodes[d]!;
+      if (el.junction === null) continue;
+      const vd = this.volt(v, el.anode) - this.volt(v, el.cathode);
+      this.vj[d] = evalJunction(el.junction, vd, this.vj[d]!, out);
+      this.stampI(el.anode, el.cathode, out[0]!);
+      this.stampG(el.anode, el.cathode, out[1]!);
     }
     for (const s of c.sinks) {
       switch (s.kind) {
-        case 'resistor': {
-          const g = 1 / s.ohms;
-          this.stampI(s.a, s.b, (this.volt(v, s.a) - this.volt(v, s.b)) * g);
-          this.stampG(s.a, s.b, g);
+        case 'resistor':
           break;
-        }
         case 'current-load': {
           evalCurrentSink(s.amps, this.volt(v, s.a), out);
           this.stampI(s.a, GROUND, out[0]!);
@@ -202,10 +226,9 @@ class Stepper {
           break;
         }
         case 'linear-regulator': {
-          const vin = this.volt(v, s.input);
-          const [i, g] = regulatorInputCurrent(s, vin, out);
-          this.stampI(s.input, GROUND, i);
-          this.stampG(s.input, GROUND, g);
+          regulatorInputCurrent(s, this.volt(v, s.input), out);
+          this.stampI(s.input, GROUND, out[0]!);
+          this.stampG(s.input, GROUND, out[1]!);
           break;
         }
       }
@@ -219,8 +242,9 @@ class Stepper {
   newton(t: number): boolean {
     const m = this.m;
     const v = this.v;
+    this.prepareLinear(t);
     for (let it = 0; it < NEWTON_MAX; it++) {
-      this.assemble(v, t);
+      this.assemble(v);
       if (!luFactor(this.jac, m, this.piv)) return false;
       luSolve(this.jac, m, this.piv, this.rhs);
       let worst = 0;
@@ -278,12 +302,12 @@ class Stepper {
   }
 }
 
-/** Regulator input current and its derivative at input voltage vin. */
+/** Regulator input current and its derivative at input voltage vin, into out[0], out[1]. */
 function regulatorInputCurrent(
   s: Extract<Circuit['sinks'][number], { kind: 'linear-regulator' }>,
   vin: number,
   out: Float64Array,
-): [number, number] {
+): void {
   evalRegulatorOutput(s.volts, s.dropoutVolts, vin, out);
   const vout = out[0]!;
   const dvout = out[1]!;
@@ -298,7 +322,8 @@ function regulatorInputCurrent(
     gLoad = out[1]! * dvout;
   }
   evalCurrentSink(s.quiescentAmps, vin, out);
-  return [iLoad + out[0]!, gLoad + out[1]!];
+  out[0] = iLoad + out[0]!;
+  out[1] = gLoad + out[1]!;
 }
 
 /**

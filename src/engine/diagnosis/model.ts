@@ -188,7 +188,9 @@ export function buildSupplyModel(spec: SupplySpec, meter: ResolvedMeter, tolIn: 
     const key = JSON.stringify(v.spec);
     let r = cache.get(key);
     if (!r) {
-      r = v.fault === 'healthy' ? nominal : solveSupply(v.spec, warm ? { waveformPoints: WAVE_POINTS, warmStart: warm } : { waveformPoints: WAVE_POINTS });
+      // A fault that changes which diodes conduct gets a fresh grid; the others start warm.
+      const structural = v.fault === 'diode-open' || v.fault === 'diode-short' || v.fault === 'capacitor-open' || v.fault === 'no-ac';
+      r = v.fault === 'healthy' ? nominal : solveSupply(v.spec, warm && !structural ? { waveformPoints: WAVE_POINTS, warmStart: warm } : { waveformPoints: WAVE_POINTS });
       cache.set(key, r);
     }
     return { ...v, prediction: predictLive(r, v.spec, meter, mains, v.lineFactor), converged: r.converged };
