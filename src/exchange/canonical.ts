@@ -123,3 +123,29 @@ export function fnv1a64Hex(text: string): string {
   }
   return hash.toString(16).padStart(16, '0');
 }
+
+/**
+ * Whether two JSON values are equal as JSON: the same members whatever their order, `undefined`
+ * members counting as absent (as canonicalJson leaves them out). Equivalent to comparing their
+ * canonical JSON, without building the text.
+ */
+export function sameJson(a: unknown, b: unknown): boolean {
+  if (a === b) return true;
+  if (typeof a !== 'object' || typeof b !== 'object' || a === null || b === null) return false;
+  if (Array.isArray(a)) {
+    if (!Array.isArray(b) || a.length !== b.length) return false;
+    for (let i = 0; i < a.length; i++) if (!sameJson(a[i], b[i])) return false;
+    return true;
+  }
+  if (Array.isArray(b)) return false;
+  const x = a as Record<string, unknown>;
+  const y = b as Record<string, unknown>;
+  let count = 0;
+  for (const key in x) {
+    if (!Object.hasOwn(x, key) || x[key] === undefined) continue;
+    count += 1;
+    if (!Object.hasOwn(y, key) || !sameJson(x[key], y[key])) return false;
+  }
+  for (const key in y) if (Object.hasOwn(y, key) && y[key] !== undefined) count -= 1;
+  return count === 0;
+}

@@ -23,7 +23,7 @@
  * files does not change the merged records.
  */
 import type { IsoTime, Job, JobField, MergeConflict, Reading } from '../model/job';
-import { canonicalJson, fnv1a64Hex } from './canonical';
+import { canonicalJson, fnv1a64Hex, sameJson } from './canonical';
 import { ASSET_FIELDS, JOB_FIELDS, type AssetField, type JobPayload, type RecordConflict } from './format';
 import { sortPayload } from './order';
 import { VARIANT_SUFFIX } from './schema';
@@ -198,8 +198,7 @@ const laterCandidate = (a: FieldCandidate, b: FieldCandidate): boolean =>
 function mergeJob(versions: Version<Job>[], conflicts: MergeConflict[]): Job {
   const first = versions[0]!.record;
   if (versions.length === 1) return first;
-  const canonicals = versions.map((version) => canonicalJson(version.record));
-  if (canonicals.every((text) => text === canonicals[0])) return first;
+  if (versions.every((version) => sameJson(version.record, first))) return first;
 
   const jobId = first.id;
   const merged: Record<string, unknown> = { id: jobId };
@@ -271,7 +270,7 @@ function mergeFlatRecord<T extends { id: string }>(
 ): T {
   const first = versions[0]!.record;
   if (versions.length === 1) return first;
-  if (versions.every((version) => canonicalJson(version.record) === canonicalJson(first))) return first;
+  if (versions.every((version) => sameJson(version.record, first))) return first;
   const merged: Record<string, unknown> = { id: first.id };
   for (const field of fields) {
     const candidates = versions.map((version) => ({
@@ -315,6 +314,12 @@ function mergeFlatRecord<T extends { id: string }>(
 // ---------------------------------------------------------------------------------------------
 
 function mergeReadingGroup(baseId: string, versions: Version<Reading>[], out: Reading[], clashes: ReadingClash[]): number {
+  // The usual group: the same reading from the store and a file, or from two files.
+  const first = versions[0]!.record;
+  if (first.id === baseId && versions.every((version) => sameJson(version.record, first))) {
+    out.push(first);
+    return versions.length - 1;
+  }
   // Distinct contents, each as it reads under the base id.
   const contents = new Map<string, { reading: Reading; fromBase: boolean; sources: Set<string> }>();
   for (const { record, source, fromBase } of versions) {
@@ -465,7 +470,7 @@ function compareWithBase(payload: JobPayload, base: JobPayload | undefined, dupl
       if (old === undefined) {
         added += 1;
         changed.push(record);
-      } else if (old !== record && canonicalJson(old) !== canonicalJson(record)) {
+      } else if (old !== record && !sameJson(old, record)) {
         updated += 1;
         changed.push(record);
       }

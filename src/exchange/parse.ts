@@ -298,10 +298,21 @@ async function digestOfWrittenLayout(content: FileContent, sha256: string): Prom
   if (start <= 0) return false;
   const suffix = `,"sha256":"${sha256}"}`;
   for (let i = 0; i < DIGEST_SUFFIX_BYTES; i++) if (content[start + i] !== suffix.charCodeAt(i)) return false;
-  const canonical = new Uint8Array(start + 1);
-  canonical.set(content.subarray(0, start));
-  canonical[start] = 0x7d; // "}"
-  return (await sha256HexOfBytes(canonical)) === sha256;
+  // The canonical text is the bytes up to the "," before "sha256", then "}". Rather than copy
+  // 200 MB, that "," becomes "}" while digest() takes its copy of the bytes (WebCrypto copies
+  // them before it returns, Web Cryptography API §14.3.x "digest" step 2) and is put back at
+  // once. So the caller's bytes must not be shared with another thread during the call.
+  const digestDone = sha256HexOfSlice(content, start);
+  return (await digestDone) === sha256;
+}
+
+function sha256HexOfSlice(bytes: Uint8Array, comma: number): Promise<string> {
+  bytes[comma] = 0x7d; // "}"
+  try {
+    return sha256HexOfBytes(bytes.subarray(0, comma + 1));
+  } finally {
+    bytes[comma] = 0x2c; // ","
+  }
 }
 
 /**

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { canonicalJson, decodeUtf8Strict, encodeUtf8, sha256Hex } from '../../src/exchange/canonical';
+import { canonicalJson, decodeUtf8Strict, encodeUtf8, sameJson, sha256Hex } from '../../src/exchange/canonical';
 import { LIMITS, type JobPayload } from '../../src/exchange/format';
 import { digestText, formatProblem, readJobFile, type ReadResult } from '../../src/exchange/parse';
 import { buildJobFile, ExportError, selectForExport, writeJobFile } from '../../src/exchange/write';
@@ -41,6 +41,22 @@ describe('canonical JSON and SHA-256', () => {
     expect(await sha256Hex('abc')).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad');
   });
 
+  it('calls two values the same exactly when their canonical JSON is the same', () => {
+    const json = fc.jsonValue({ maxDepth: 3 });
+    const shuffled = (value: unknown): unknown =>
+      Array.isArray(value)
+        ? value.map(shuffled)
+        : typeof value === 'object' && value !== null
+          ? Object.fromEntries(Object.entries(value).reverse().map(([k, v]) => [k, shuffled(v)]))
+          : value;
+    fc.assert(
+      fc.property(json, json, (a, b) => {
+        expect(sameJson(a, b)).toBe(canonicalJson(a) === canonicalJson(b));
+        expect(sameJson(a, shuffled(a))).toBe(true);
+      }),
+    );
+  });
+
   it('refuses bytes that are not UTF-8', () => {
     expect(() => decodeUtf8Strict(new Uint8Array([0x7b, 0xc3, 0x28, 0x7d]))).toThrow();
     expect(decodeUtf8Strict(encodeUtf8('µΩ😕'))).toBe('µΩ😕');
@@ -79,6 +95,13 @@ describe('writing and reading a job file', () => {
     const text = await writeJobFile(smallPayload(), OPTIONS);
     const result = await read(JSON.stringify(JSON.parse(text), null, 2));
     expect(result.ok).toBe(true);
+  });
+
+  it('leaves the caller’s bytes as they were after reading them', async () => {
+    const bytes = encodeUtf8(await writeJobFile(smallPayload(), OPTIONS));
+    const before = bytes.slice();
+    expect((await read(bytes)).ok).toBe(true);
+    expect(bytes).toEqual(before);
   });
 
   it('ignores a leading byte-order mark', async () => {
