@@ -79,7 +79,13 @@ export function ReadingEntry({ id, kind, target, band, units, latest, history = 
         : null;
 
   return (
-    <div class="reading-entry" data-reading={target === undefined ? kind : `${kind}:${target}`}>
+    <div
+      class="reading-entry"
+      data-reading={target === undefined ? kind : `${kind}:${target}`}
+      data-band-low={band?.low}
+      data-band-high={band?.high}
+      data-band-overload={band?.expectOverload ? 'yes' : undefined}
+    >
       <label for={inputId} class="reading-label">
         {readingName(kind, target)}
         {labelSuffix ? <span class="hint"> {labelSuffix}</span> : null}

@@ -18,6 +18,8 @@ export interface SchematicProps {
   compact?: boolean;
   /** Words for screen readers; the default names the rectifier. */
   label?: string;
+  /** Hidden from screen readers (a thumbnail beside its own words). */
+  decorative?: boolean;
 }
 
 type Point = readonly [number, number];
@@ -207,13 +209,20 @@ const TOPOLOGY_WORDS: Record<Topology, string> = {
 };
 
 /** The supply drawn as a schematic, with the probe points of a reading marked. */
-export function Schematic({ topology, regulator = 'none', filtered = true, probes = null, compact = false, label }: SchematicProps) {
+export function Schematic({ topology, regulator = 'none', filtered = true, probes = null, compact = false, label, decorative = false }: SchematicProps) {
   const d = drawing(topology, regulator, filtered);
   const red = probes === null ? undefined : d.points[probes.red];
   const black = probes === null ? undefined : d.points[probes.black];
   const words = label ?? `Schematic of a ${TOPOLOGY_WORDS[topology]}${probes ? `, red probe on ${probes.red}, black probe on ${probes.black}` : ''}`;
   return (
-    <svg class={compact ? 'schematic compact' : 'schematic'} viewBox="0 0 360 170" role="img" aria-label={words}>
+    <svg
+      class={compact ? 'schematic compact' : 'schematic'}
+      viewBox="0 0 360 170"
+      role={decorative ? undefined : 'img'}
+      aria-label={decorative ? undefined : words}
+      aria-hidden={decorative ? 'true' : undefined}
+      focusable="false"
+    >
       <g class="wires" fill="none">
         {d.paths.map((path) => <path key={path} d={path} />)}
         {d.diodes.map((diode) => <DiodeSymbol key={diode.label} {...diode} compact={compact} />)}

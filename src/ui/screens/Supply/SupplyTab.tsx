@@ -110,7 +110,7 @@ export function SupplyTab({ data, actions, diagnosis }: TabProps) {
         {TOPOLOGIES.map((choice) => (
           <label key={choice.topology} class={`topology-choice${form.topology === choice.topology ? ' chosen' : ''}`}>
             <input type="radio" name="topology" value={choice.topology} checked={form.topology === choice.topology} onChange={() => change({ topology: choice.topology })} />
-            <Schematic topology={choice.topology} compact label={`${choice.name} schematic`} />
+            <Schematic topology={choice.topology} compact decorative />
             <span class="choice-name">{choice.name}</span>
             <span class="hint">{choice.words}</span>
           </label>

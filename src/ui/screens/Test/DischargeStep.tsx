@@ -52,7 +52,7 @@ export function DischargeStep({ next, topology, regulator, filtered, draftText, 
         </li>
       </ol>
       <Schematic topology={topology} regulator={regulator} filtered={filtered} probes={probes} />
-      <div class="reading-entry">
+      <div class="reading-entry" data-reading="discharge">
         <label for="discharge-volts" class="reading-label">Voltage left across the capacitor</label>
         <p class="expect" id="discharge-expect">
           Must be below <strong>{SAFE_RESIDUAL_VOLTS} V</strong>
