@@ -69,23 +69,19 @@ export function evalJunction(j: Junction, volts: number, guessVj: number, out: F
   // long step up is clamped to the bound, so the iterates never run up the exponential.
   const rIs = r * is;
   let vj = guessVj > 0 && guessVj < volts ? guessVj : Math.min(volts, a * Math.log1p(volts / rIs));
-  let e = 0;
   for (let k = 0; k < 60; k++) {
-    e = Math.exp(vj / a);
+    const e = Math.exp(vj / a);
     const step = (vj + rIs * (e - 1) - volts) / (1 + (rIs * e) / a);
     vj -= step;
-    if (Math.abs(step) <= 1e-7) {
-      // Quadratic convergence: the error left is about step²/(2·nVt) < 1e-12 V. Carry the
-      // exponential to the new point to first order instead of evaluating it again.
-      e *= 1 - step / a;
-      break;
-    }
+    // To rounding: the outer Newton and the shooting above it need a smooth, exact law, or
+    // the period map turns noisy and the shooting stalls at the noise.
+    if (Math.abs(step) <= 1e-13) break;
     if (step < -4 * a) vj = Math.min(vj, volts, a * Math.log1p(volts / rIs));
   }
-  // Large currents from the resistor's drop (better conditioned), small from the exponential.
-  const i = volts - vj > 1e-3 * a ? (volts - vj) / r : is * (e - 1);
+  const e = Math.exp(vj / a);
+  // The current from the resistor's drop: exact to rounding at any current.
   const gj = (is * e) / a;
-  out[0] = i;
+  out[0] = (volts - vj) / r;
   out[1] = gj / (1 + r * gj);
   return vj;
 }

@@ -140,9 +140,11 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
   const periodSeconds = 1 / spec.source.hz;
   const vm = Math.SQRT2 * spec.source.vrms;
   // Periodicity tolerance: the state may differ by this much after one period. The figures then
-  // carry an error of the same order, 1e-4 of the peak by default: far below the grid's own
-  // discretisation error (a few 1e-3 at most) and the meters' accuracy.
-  const toleranceVolts = options.toleranceVolts ?? 1e-4 * Math.max(vm, 1);
+  // carry an error of the same order: 1e-4 of the peak by default, far below the grid's own
+  // discretisation error (a few 1e-3 at most) and the meters' accuracy; and once the coarse
+  // pass has shown the ripple, at most 1e-3 of it, since a light load's small ripple (and the
+  // charge each period carries) would otherwise be lost in that error.
+  let toleranceVolts = options.toleranceVolts ?? 1e-4 * Math.max(vm, 1);
   const maxIterations = options.maxIterations ?? 40;
   const filtered = circuit.capacitors.length > 0;
   const estimates = estimateSupply(spec);
@@ -178,12 +180,15 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
   let iterations = sol.iterations;
   let coarseOk = sol.converged && sol.stepsConverged;
   if (options.stepsPerPeriod === undefined && filtered) {
+    if (options.toleranceVolts === undefined) toleranceVolts = Math.min(toleranceVolts, Math.max(1e-3 * meas.ripplePp, 1e-9 * Math.max(vm, 1)));
     steps = conductionSteps(meas.series.iDiode, steps);
     const k = circuit.capacitors.length;
+    // A few iterations first: if the diode currents turn out under-resolved (below), the map
+    // is rough on this grid and further iterations are better spent on the finer one.
     const refined = solveSteadyState(circuit, {
       steps,
       toleranceVolts,
-      maxIterations,
+      maxIterations: Math.min(6, maxIterations),
       initialCapacitorVolts: Array.from(sol.startState.subarray(0, k)),
       predictor: { times: sol.times, nodeVolts: sol.nodeVolts },
     });
@@ -191,8 +196,81 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
     coarseOk = true;
     sol = refined;
     meas = measurePeriod(circuit, sol);
+    for (let round = 0; round < 3; round++) {
+      const finer = round < 2 ? finerSteps(meas.series.iDiode, steps) : null;
+      if (finer === null && sol.converged) break;
+      if (finer !== null) steps = finer;
+      const again = solveSteadyState(circuit, {
+        steps,
+        toleranceVolts,
+        maxIterations,
+        initialCapacitorVolts: [],
+        initialState: sol.startState,
+        predictor: { times: sol.times, nodeVolts: sol.nodeVolts },
+      });
+      iterations += again.iterations;
+      sol = again;
+      meas = measurePeriod(circuit, sol);
+      if (finer === null) break;
+    }
   }
   return assemble(spec, circuit, sol, meas, iterations, coarseOk, estimates, options);
+}
+
+/** Largest change of a diode's current over one step, as a fraction of its peak (our rule). */
+const EDGE_FRACTION = 0.25;
+/** Fewest steps wanted inside a conduction pulse on the refined grid (our rule). */
+const MIN_PULSE_STEPS = 32;
+const MAX_SPLIT = 8;
+
+/**
+ * A finer grid where the refined solution shows the diode currents under-resolved: steps in
+ * which some diode's current changes by more than EDGE_FRACTION of its peak (a stiff turn-on,
+ * milliohms into a small capacitor), and conduction pulses covering fewer than MIN_PULSE_STEPS
+ * steps (a light load's short pulse). Marked steps and their neighbours are split, then graded
+ * again. Null when nothing needs it or the grid would grow past MAX_STEPS.
+ */
+function finerSteps(iDiode: Float64Array[], steps: Float64Array): Float64Array | null {
+  const N = steps.length;
+  const split = new Uint8Array(N);
+  const want = (n: number, k: number): void => {
+    for (const j of [n - 1, n, n + 1]) {
+      const i = (j + N) % N;
+      split[i] = Math.max(split[i]!, Math.min(MAX_SPLIT, k));
+    }
+  };
+  for (const cur of iDiode) {
+    let peak = 0;
+    for (let n = 0; n <= N; n++) peak = Math.max(peak, Math.abs(cur[n]!));
+    if (!(peak > 1e-9)) continue;
+    for (let n = 0; n < N; n++) {
+      const jump = Math.abs(cur[n + 1]! - cur[n]!) / peak;
+      if (jump > EDGE_FRACTION) want(n, Math.ceil(jump / EDGE_FRACTION) * 2);
+    }
+    // Conduction runs above 2 % of the peak, circularly, from a step where it is off.
+    const on = (n: number): boolean => cur[n % N]! > 0.02 * peak;
+    let start = 0;
+    while (start < N && on(start)) start++;
+    if (start === N) continue;
+    let run: number[] = [];
+    for (let j = 1; j <= N; j++) {
+      const n = (start + j) % N;
+      if (on(n)) run.push(n);
+      else if (run.length > 0) {
+        if (run.length < MIN_PULSE_STEPS) for (const r of run) want(r, Math.ceil(MIN_PULSE_STEPS / run.length));
+        run = [];
+      }
+    }
+  }
+  let extra = 0;
+  for (let n = 0; n < N; n++) if (split[n]! > 1) extra += split[n]! - 1;
+  if (extra === 0 || N + extra > MAX_STEPS) return null;
+  const out: number[] = [];
+  for (let n = 0; n < N; n++) {
+    const k = Math.max(1, split[n]!);
+    for (let q = 0; q < k; q++) out.push(steps[n]! / k);
+  }
+  return gradeSteps(out, MAX_STEP_RATIO);
 }
 
 /** The result object from a solved period. */

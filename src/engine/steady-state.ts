@@ -74,6 +74,10 @@ const GMIN = GMIN_SIEMENS;
 const GROUND = GROUND_NODE;
 const ZENER_KNEE = ZENER_KNEE_VOLTS;
 const NEWTON_MAX = 80;
+/** Newton tolerances per step: node voltage change, volts (absolute and relative), and KCL residual, amps. */
+const VOLT_ABS = 1e-6;
+const VOLT_REL = 1e-8;
+const RESIDUAL_AMPS = 1e-10;
 const SUBDIVISION_DEPTH = 8;
 
 /** Workspace for one circuit: all scratch arrays the step loop needs. */
@@ -245,6 +249,12 @@ class Stepper {
     this.prepareLinear(t);
     for (let it = 0; it < NEWTON_MAX; it++) {
       this.assemble(v);
+      // Converged on the currents (as SPICE also tests): every node's KCL residual below
+      // RESIDUAL_AMPS. This settles directions the voltages cannot, such as the common mode of
+      // a floating winding while every diode is off, held only by leakage and gmin.
+      let residual = 0;
+      for (let n = 0; n < m; n++) residual = Math.max(residual, Math.abs(this.rhs[n]!));
+      if (it > 0 && residual <= RESIDUAL_AMPS) return true;
       if (!luFactor(this.jac, m, this.piv)) return false;
       luSolve(this.jac, m, this.piv, this.rhs);
       let worst = 0;
@@ -252,10 +262,11 @@ class Stepper {
         const dv = -this.rhs[n]!;
         if (!Number.isFinite(dv)) return false;
         v[n] = v[n]! + dv;
-        const tol = 1e-5 + 1e-6 * Math.abs(v[n]!);
+        const tol = VOLT_ABS + VOLT_REL * Math.abs(v[n]!);
         const ratio = Math.abs(dv) / tol;
         if (ratio > worst) worst = ratio;
       }
+      // Converged on the voltages: quadratic convergence leaves an error far below the step.
       if (worst <= 1) return true;
     }
     return false;
@@ -345,7 +356,14 @@ function step(
   saved.set(st.v);
   st.setCompanions(h, hPrev, s);
   if (st.newton(t + h)) {
-    if (stepJac !== null) stepSensitivity(st, stepJac);
+    if (stepJac !== null) {
+      // The sensitivity needs the Jacobian at the converged point: the last Newton matrix was
+      // taken one update earlier, and through a stiff diode that is a different slope (the
+      // shooting then crawls).
+      st.assemble(st.v);
+      luFactor(st.jac, st.m, st.piv);
+      stepSensitivity(st, stepJac);
+    }
     st.advanceState(s);
     return true;
   }
