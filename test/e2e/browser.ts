@@ -69,7 +69,7 @@ export async function screenshot(page: Page, name: string): Promise<void> {
   try {
     await page.screenshot({ path: join(SCREENS, `${name}.png`), fullPage: true, animations: 'disabled' });
   } finally {
-    await style.evaluate((element) => element.remove());
+    await style.evaluate((element) => (element as Element).remove());
   }
 }
 
