@@ -5,10 +5,11 @@
  */
 import { diagnosisSection } from './diagnosis';
 import { engineSolveSection } from './engine-solve';
+import { exchangeSection } from './exchange';
 import { ngspiceTransientSection } from './ngspice-transient';
 import { formatTable, type BenchContext, type BenchSection } from './report';
 
-const SECTIONS: BenchSection[] = [engineSolveSection, ngspiceTransientSection, diagnosisSection];
+const SECTIONS: BenchSection[] = [engineSolveSection, ngspiceTransientSection, diagnosisSection, exchangeSection];
 
 function parseFlags(args: readonly string[]): Map<string, string> {
   const flags = new Map<string, string>();
