@@ -149,17 +149,17 @@ export class MemoryImportStore implements ImportStore {
   private queue: Promise<unknown> = Promise.resolve();
 
   constructor(initial: JobPayload = emptyPayload()) {
-    this.records = structuredCloneRecords(initial);
+    this.records = copyRecords(initial);
   }
 
   /** A copy of everything stored. */
   snapshot(): JobPayload {
-    return structuredCloneRecords(this.records);
+    return copyRecords(this.records);
   }
 
   transaction<T>(work: (tx: ImportTransaction) => Promise<T>): Promise<T> {
     const run = this.queue.then(async () => {
-      const staged = structuredCloneRecords(this.records);
+      const staged = copyRecords(this.records);
       const tx: ImportTransaction = {
         read: async (ids) => readIds(staged, ids),
         write: async (changes) => writeInto(staged, changes),
@@ -173,7 +173,7 @@ export class MemoryImportStore implements ImportStore {
   }
 }
 
-function structuredCloneRecords(payload: JobPayload): JobPayload {
+function copyRecords(payload: JobPayload): JobPayload {
   return JSON.parse(JSON.stringify(payload)) as JobPayload;
 }
 

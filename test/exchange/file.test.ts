@@ -194,6 +194,16 @@ describe('damaged, altered and foreign files', () => {
     expect(problems).toContain(`jobs.json: job job-a: reading r-2: payload.readings[1].note: text too long (${LIMITS.longTextChars + 1} characters; at most ${LIMITS.longTextChars})`);
   });
 
+  it('refuses lists longer than the limits and deeply nested values without crashing', async () => {
+    const payload = smallPayload();
+    payload.jobs[1]!.finish!.partsUsed = Array.from({ length: 100_000 }, () => 'fuse');
+    const deep = `${'['.repeat(100_000)}"bottom"${']'.repeat(100_000)}`;
+    const text = (await sealedText({ payload })).replace('"note":"=1+1 from the office"', `"note":${deep}`);
+    const problems = problemsOf(await read(text));
+    expect(problems).toContain(`jobs.json: job job-b: payload.jobs[1].finish.partsUsed: too many parts (100000; at most ${LIMITS.partsPerJob})`);
+    expect(problems).toContain('jobs.json: job job-a: reading r-2: payload.readings[1].note: expected text, got a list');
+  });
+
   it('refuses a file larger than the byte limit before parsing it', async () => {
     const huge = new Uint8Array(LIMITS.fileBytes + 1);
     expect(problemsOf(await read(huge))[0]).toMatch(/too large/);
