@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { diagnoseValue } from '../../src/cli/diagnose';
 import { main } from '../../src/cli/main';
-import { diagnose } from '../../src/engine/diagnosis';
+import { diagnose, type DiagnoseInput } from '../../src/engine/diagnosis';
 import { BRIDGE_SPEC, memoryIo } from './helpers';
 
 const input = { spec: BRIDGE_SPEC, readings: { dcOut: '15,1', rippleAc: '0.5 V', rippleHz: 100 } };
@@ -21,7 +21,7 @@ describe('ripplewright diagnose', () => {
     const io = memoryIo();
     expect(await main(['diagnose', file(JSON.stringify(input))], io)).toBe(0);
     const out = JSON.parse(io.stdout.text) as ReturnType<typeof diagnose>;
-    expect(out).toEqual(JSON.parse(JSON.stringify(diagnose(input))));
+    expect(out).toEqual(JSON.parse(JSON.stringify(diagnose(input as unknown as DiagnoseInput))));
     const p = out.ranked.map((r) => r.probability);
     expect([...p].sort((a, b) => b - a)).toEqual(p);
     expect(out.next).not.toBeNull();

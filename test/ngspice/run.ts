@@ -273,6 +273,11 @@ export interface ReferenceOptions {
   tolerance?: number;
   /** Extremes (p-p, peak current, PIV) of the last two periods must agree to this. Default 2e-3. */
   extremeTolerance?: number;
+  /**
+   * Capacitor voltages to start the first run from (default 0: from rest). A start near the
+   * steady state shortens the settling of slow modes; the settling checks are the same.
+   */
+  initialCapacitorVolts?: number[];
 }
 
 type Column = Float64Array;
@@ -369,7 +374,7 @@ export function referenceMeasures(spec: SupplySpec, options: ReferenceOptions = 
   const vm = Math.SQRT2 * spec.source.vrms;
   const voltFloor = 1e-4 * vm;
 
-  let capVolts: number[] = spec.capacitors.map(() => 0);
+  let capVolts: number[] = spec.capacitors.map((_, q) => options.initialCapacitorVolts?.[q] ?? 0);
   let chunk = Math.max(4, options.firstPeriods ?? 20);
   let periods = 0;
   let runs = 0;
