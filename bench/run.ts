@@ -3,13 +3,14 @@
  * Prints one table per section, then a final line of JSON with every section's summary.
  * Add a section: write a `BenchSection` (bench/report.ts) and list it here.
  */
+import { appBudgetSection } from './app-budget';
 import { diagnosisSection } from './diagnosis';
 import { engineSolveSection } from './engine-solve';
 import { exchangeSection } from './exchange';
 import { ngspiceTransientSection } from './ngspice-transient';
 import { formatTable, type BenchContext, type BenchSection } from './report';
 
-const SECTIONS: BenchSection[] = [engineSolveSection, ngspiceTransientSection, diagnosisSection, exchangeSection];
+const SECTIONS: BenchSection[] = [engineSolveSection, ngspiceTransientSection, diagnosisSection, exchangeSection, appBudgetSection];
 
 function parseFlags(args: readonly string[]): Map<string, string> {
   const flags = new Map<string, string>();

@@ -73,7 +73,11 @@ export function App({ open = openAppStore, engine = sharedEngine(), startService
 
   useEffect(() => {
     if (opening.state !== 'open' || startServiceWorker === undefined) return;
-    void startServiceWorker((accept) => setUpdate({ accept, hidden: false })).catch(() => undefined);
+    // After the first screen: its code and the worker's are not part of what the first screen waits for.
+    const start = () => void startServiceWorker((accept) => setUpdate({ accept, hidden: false })).catch(() => undefined);
+    const idle = () => (typeof requestIdleCallback === 'function' ? requestIdleCallback(start, { timeout: 2000 }) : setTimeout(start, 200));
+    if (document.readyState === 'complete') idle();
+    else addEventListener('load', idle, { once: true });
   }, [opening.state === 'open', startServiceWorker]);
 
   const services = useMemo<AppServices | null>(() => {

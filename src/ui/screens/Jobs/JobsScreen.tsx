@@ -5,10 +5,9 @@ import { listJobs, matchJobs } from '../../../store/jobs';
 import { useApp } from '../../app-context';
 import { ScreenTitle } from '../../components/ScreenTitle';
 import { formatWhen } from '../../format';
+import { FIRST_SCREEN_MARK } from '../../marks';
 import { routeHash } from '../../router';
 
-/** Set once, when the first screen shows the stored jobs: the start-up benchmark reads it. */
-export const FIRST_SCREEN_MARK = 'ripplewright:first-screen-usable';
 
 const loadDemo = () => import('../../../app-demo/seed');
 

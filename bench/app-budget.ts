@@ -1,0 +1,147 @@
+/**
+ * The app's two budgets, measured on a production build in Debian's Chromium:
+ * - JavaScript fetched before the first screen is usable, gzipped (budget 40 KB): every script
+ *   response up to the moment the jobs screen has read the store (FIRST_SCREEN_MARK), each body
+ *   gzipped with zlib's default level as a server would send it;
+ * - time to a usable first screen with no network after the first visit (budget 1 s): from
+ *   navigation start to FIRST_SCREEN_MARK on offline reloads, median and worst of several.
+ * Skipped with a note when Chromium is missing. Flags: --skip-app.
+ */
+import { spawn } from 'node:child_process';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { gzipSync } from 'node:zlib';
+import { FIRST_SCREEN_MARK } from '../src/ui/marks';
+import { median, type BenchSection } from './report';
+
+// npm run bench runs from the repository root (and bundles this file elsewhere first).
+const ROOT = `${process.cwd()}/`;
+const CHROMIUM = process.env.RIPPLEWRIGHT_CHROMIUM ?? '/usr/bin/chromium';
+const BUDGET_GZIP_BYTES = 40 * 1024;
+const BUDGET_OFFLINE_MS = 1000;
+const OFFLINE_LOADS = 7;
+
+export interface AppBudgetSummary {
+  firstScreenJsGzipKb: number;
+  firstScreenJsFiles: { file: string; gzipBytes: number }[];
+  offlineFirstScreenMedianMs: number;
+  offlineFirstScreenMaxMs: number;
+  budgets: { firstScreenJsGzipKb: number; offlineFirstScreenMs: number };
+  withinBudget: boolean;
+}
+
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const server = createServer();
+    server.once('error', reject);
+    server.listen(0, '127.0.0.1', () => {
+      const address = server.address();
+      server.close(() => (typeof address === 'object' && address !== null ? resolve(address.port) : reject(new Error('no port'))));
+    });
+  });
+}
+
+async function measure(): Promise<AppBudgetSummary> {
+  const { build } = await import('vite');
+  const { chromium } = await import('playwright-core');
+  const out = mkdtempSync(join(tmpdir(), 'ripplewright-bench-dist-'));
+  const profile = mkdtempSync(join(tmpdir(), 'ripplewright-bench-profile-'));
+  const nodeEnv = process.env.NODE_ENV;
+  process.env.NODE_ENV = 'production';
+  try {
+    await build({ root: ROOT, configFile: `${ROOT}vite.config.ts`, mode: 'production', logLevel: 'error', build: { outDir: out, emptyOutDir: true } });
+  } finally {
+    process.env.NODE_ENV = nodeEnv;
+  }
+  const port = await freePort();
+  const server = spawn(process.execPath, [`${ROOT}node_modules/vite/bin/vite.js`, 'preview', '--outDir', out, '--host', '127.0.0.1', '--port', String(port), '--strictPort'], { cwd: ROOT, stdio: 'ignore' });
+  const url = `http://127.0.0.1:${port}/`;
+  const context = await (async () => {
+    for (let i = 0; i < 100; i++) {
+      try {
+        if ((await fetch(url)).ok) break;
+      } catch {
+        await new Promise((resolve) => setTimeout(resolve, 100));
+      }
+    }
+    return chromium.launchPersistentContext(profile, {
+      executablePath: CHROMIUM,
+      headless: true,
+      viewport: { width: 390, height: 844 },
+      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    });
+  })();
+  try {
+    const page = context.pages()[0] ?? (await context.newPage());
+    // First visit: every script fetched until the first screen is usable.
+    const scripts: { url: string; at: number; body: Promise<Buffer> }[] = [];
+    const start = Date.now();
+    const onResponse = (response: import('playwright-core').Response) => {
+      // A body is readable only until the page navigates; the later ones are not counted anyway.
+      if (response.request().resourceType() === 'script') scripts.push({ url: response.url(), at: Date.now() - start, body: response.body().catch(() => Buffer.alloc(0)) });
+    };
+    page.on('response', onResponse);
+    await page.goto(url);
+    await page.waitForFunction((mark) => performance.getEntriesByName(mark).length > 0, FIRST_SCREEN_MARK);
+    const usableAt = Date.now() - start;
+    page.off('response', onResponse);
+    const before = scripts.filter((s) => s.at <= usableAt);
+    const files = await Promise.all(before.map(async (s) => ({ file: new URL(s.url).pathname, gzipBytes: gzipSync(await s.body).length })));
+    const gzipBytes = files.reduce((sum, f) => sum + f.gzipBytes, 0);
+
+    // Installed, with the demo shop's jobs in the store: then offline reloads, timed by the page's own clock.
+    await page.waitForFunction(() => navigator.serviceWorker.controller?.state === 'activated', null, { timeout: 30_000, polling: 100 });
+    await page.getByRole('button', { name: 'Try with demo data' }).click();
+    await page.waitForFunction(() => document.querySelectorAll('.job-card').length >= 6, null, { timeout: 60_000 });
+    await context.setOffline(true);
+    const times: number[] = [];
+    for (let i = 0; i < OFFLINE_LOADS; i++) {
+      await page.reload();
+      const at = await page.waitForFunction((mark) => performance.getEntriesByName(mark)[0]?.startTime, FIRST_SCREEN_MARK);
+      times.push((await at.jsonValue()) as number);
+    }
+    // The first offline load warms the browser's code cache like any later visit would: report all.
+    const medianMs = median(times);
+    const maxMs = Math.max(...times);
+    return {
+      firstScreenJsGzipKb: Number((gzipBytes / 1024).toFixed(1)),
+      firstScreenJsFiles: files,
+      offlineFirstScreenMedianMs: Math.round(medianMs),
+      offlineFirstScreenMaxMs: Math.round(maxMs),
+      budgets: { firstScreenJsGzipKb: BUDGET_GZIP_BYTES / 1024, offlineFirstScreenMs: BUDGET_OFFLINE_MS },
+      withinBudget: gzipBytes <= BUDGET_GZIP_BYTES && maxMs <= BUDGET_OFFLINE_MS,
+    };
+  } finally {
+    await context.close();
+    server.kill('SIGTERM');
+    rmSync(profile, { recursive: true, force: true });
+    rmSync(out, { recursive: true, force: true });
+  }
+}
+
+export const appBudgetSection: BenchSection = {
+  key: 'appBudget',
+  title: 'App budgets: first-screen JavaScript and offline start (production build, Chromium)',
+  async run(context) {
+    if (context.flags.has('skip-app')) return { notes: ['skipped (--skip-app)'], json: { skipped: '--skip-app' } };
+    if (!existsSync(CHROMIUM)) return { notes: [`skipped: no Chromium at ${CHROMIUM} (apt-get install chromium)`], json: { skipped: 'no chromium' } };
+    const s = await measure();
+    return {
+      table: {
+        columns: ['measure', 'figure', 'budget'],
+        rows: [
+          ['JavaScript fetched for the first screen, gzip', `${s.firstScreenJsGzipKb} KB`, `≤ ${s.budgets.firstScreenJsGzipKb} KB`],
+          ['first screen usable offline, median', `${s.offlineFirstScreenMedianMs} ms`, `≤ ${s.budgets.offlineFirstScreenMs} ms`],
+          ['first screen usable offline, worst', `${s.offlineFirstScreenMaxMs} ms`, `≤ ${s.budgets.offlineFirstScreenMs} ms`],
+        ],
+      },
+      notes: [
+        `first-screen scripts: ${s.firstScreenJsFiles.map((f) => `${f.file} ${(f.gzipBytes / 1024).toFixed(1)} KB`).join(', ')}`,
+        `offline loads: ${OFFLINE_LOADS}, from navigation start to the jobs screen showing the demo shop's stored jobs; ${s.withinBudget ? 'within budget' : 'OVER BUDGET'}`,
+      ],
+      json: s,
+    };
+  },
+};
