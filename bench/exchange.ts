@@ -68,45 +68,55 @@ export const exchangeSection: BenchSection = {
     const jobCount = flagNumber(context, 'exchange-jobs', 50_000);
     const exportJobCount = flagNumber(context, 'exchange-export-jobs', 10_000);
 
-    const generated = await timeMs(() => generateDemo({ jobs: jobCount, seed: 2026 }));
-    const big = generated.value;
-    const bigText = await writeJobFile(big, { exportedAt: EXPORTED_AT });
-    const bigBytes = new TextEncoder().encode(bigText);
+    // The data: the demo shop's file as bytes (as an import gets it), and the first
+    // exportJobCount jobs kept as records for the export timings. Nothing else is kept, so the
+    // timings run with a heap like the app's and not one holding several copies of the shop.
+    const generated = await timeMs(async () => {
+      const shop = generateDemo({ jobs: jobCount, seed: 2026 });
+      const bytes = new TextEncoder().encode(await writeJobFile(shop, { exportedAt: EXPORTED_AT }));
+      const exportSet = selectForExport(shop, { kind: 'jobs', jobIds: shop.jobs.slice(0, exportJobCount).map((job) => job.id) });
+      return { bytes, exportSet };
+    });
+    const { bytes: bigBytes, exportSet } = generated.value;
+
+    // Export first, while the heap is small.
+    const json = await medianMs(3, () => writeJobFile(exportSet, { exportedAt: EXPORTED_AT }));
+    const csv = await medianMs(3, () => toCsv(exportSet).length);
 
     // Import: bytes → checked records (UTF-8, JSON, every field, references, SHA-256), then the
     // merge into an empty store (best of 3); and the same file again into the store that now
     // holds it (every record collides and is compared).
     let best: { read: { ms: number; cpuMs: number }; merge: { ms: number; cpuMs: number } } | undefined;
-    let merged: JobPayload = big;
+    let big: JobPayload | undefined;
     for (let run = 0; run < 3; run++) {
+      big = undefined;
       const read = await timeMs(() => readJobFile(bigBytes, 'big.json'));
       if (!read.value.ok) throw new Error('the benchmark file did not read back');
       const file = read.value.file;
       const merge = await timeMs(() => mergePayloads([{ name: 'big.json', at: file.exportedAt, payload: file.payload }]));
-      merged = merge.value.payload;
-      if (best === undefined || read.ms + merge.ms < best.read.ms + best.merge.ms) best = { read, merge };
+      big = merge.value.payload;
+      // Keep the times only: the timed values hold whole copies of the shop.
+      if (best === undefined || read.ms + merge.ms < best.read.ms + best.merge.ms) {
+        best = { read: { ms: read.ms, cpuMs: read.cpuMs }, merge: { ms: merge.ms, cpuMs: merge.cpuMs } };
+      }
     }
     const { read: readTime, merge: mergeTime } = best!;
+    const store = big!;
     const again = await timeMs(async () => {
       const read = await readJobFile(bigBytes, 'big.json');
       if (!read.ok) throw new Error('the benchmark file did not read back');
-      return mergePayloads([{ name: 'big.json', at: EXPORTED_AT, payload: read.file.payload }], {
-        base: { name: 'store', at: EXPORTED_AT, payload: merged },
+      const result = mergePayloads([{ name: 'big.json', at: EXPORTED_AT, payload: read.file.payload }], {
+        base: { name: 'store', at: EXPORTED_AT, payload: store },
       });
+      return result.changes.jobs.length + result.changes.readings.length;
     });
-    if (again.value.changes.jobs.length + again.value.changes.readings.length !== 0) throw new Error('re-import changed the store');
-
-    // Export of the first exportJobCount jobs.
-    const someJobs = big.jobs.slice(0, exportJobCount).map((job) => job.id);
-    const exportSet = selectForExport(big, { kind: 'jobs', jobIds: someJobs });
-    const json = await medianMs(3, () => writeJobFile(exportSet, { exportedAt: EXPORTED_AT }));
-    const csv = await medianMs(3, () => toCsv(exportSet).length);
+    if (again.value !== 0) throw new Error('re-import changed the store');
 
     // Review: the index once, then each filter.
-    const indexTime = await timeMs(() => buildReviewIndex(big));
+    const indexTime = await timeMs(() => buildReviewIndex(store));
     const index = indexTime.value;
     const filterRows = FILTERS.map(({ name, filter }) => {
-      const f = filter(big);
+      const f = filter(store);
       let found = 0;
       const wall: number[] = [];
       const cpu: number[] = [];
@@ -122,23 +132,28 @@ export const exchangeSection: BenchSection = {
 
     const importMs = readTime.ms + mergeTime.ms;
     const importCpuMs = readTime.cpuMs + mergeTime.cpuMs;
+    // Targets are judged on CPU time ("on one core"): wall time on a shared machine includes
+    // other people's work.
     const verdict = (ms: number, limit: number, words: string) => (ms < limit ? `under ${words}` : `OVER ${words}`);
     const rows: (string | number)[][] = [
-      [`read + check + digest, ${big.jobs.length} jobs / ${big.readings.length} readings (${sig(bigBytes.length / 1e6)} MB)`, sig(readTime.ms), sig(readTime.cpuMs), ''],
+      [`read + check + digest, ${store.jobs.length} jobs / ${store.readings.length} readings (${sig(bigBytes.length / 1e6)} MB)`, sig(readTime.ms), sig(readTime.cpuMs), ''],
       ['merge into an empty store', sig(mergeTime.ms), sig(mergeTime.cpuMs), ''],
-      ['import + merge (best of 3)', sig(importMs), sig(importCpuMs), verdict(importMs, 2000, '2 s')],
+      ['import + merge (best of 3)', sig(importMs), sig(importCpuMs), verdict(importCpuMs, 2000, '2 s')],
       ['the same file again into the store holding it', sig(again.ms), sig(again.cpuMs), ''],
-      [`export JSON, ${exportSet.jobs.length} jobs / ${exportSet.readings.length} readings (median of 3)`, sig(json.ms), sig(json.cpuMs), verdict(json.ms, 1000, '1 s')],
-      [`export CSV, ${exportSet.readings.length} rows (median of 3)`, sig(csv.ms), sig(csv.cpuMs), verdict(csv.ms, 1000, '1 s')],
-      [`review index over ${big.jobs.length} jobs (once)`, sig(indexTime.ms), sig(indexTime.cpuMs), ''],
-      ...filterRows.map((row) => [`filter: ${row.name} (${row.found} jobs, median of 5)`, sig(row.ms), sig(row.cpuMs), verdict(row.ms, 100, '100 ms')]),
+      [`export JSON, ${exportSet.jobs.length} jobs / ${exportSet.readings.length} readings (median of 3)`, sig(json.ms), sig(json.cpuMs), verdict(json.cpuMs, 1000, '1 s')],
+      [`export CSV, ${exportSet.readings.length} rows (median of 3)`, sig(csv.ms), sig(csv.cpuMs), verdict(csv.cpuMs, 1000, '1 s')],
+      [`review index over ${store.jobs.length} jobs (once)`, sig(indexTime.ms), sig(indexTime.cpuMs), ''],
+      ...filterRows.map((row) => [`filter: ${row.name} (${row.found} jobs, median of 5)`, sig(row.ms), sig(row.cpuMs), verdict(row.cpuMs, 100, '100 ms')]),
     ];
     return {
       table: { columns: ['measure', 'wall ms', 'cpu ms', 'target'], rows },
-      notes: [`demo data generated in ${sig(generated.ms / 1000)} s (not timed above); node ${process.version}`],
+      notes: [
+        'targets are judged on CPU time (one core); wall time on a shared machine includes other work',
+        `demo data generated in ${sig(generated.ms / 1000)} s (not timed above); node ${process.version}`,
+      ],
       json: {
-        jobs: big.jobs.length,
-        readings: big.readings.length,
+        jobs: store.jobs.length,
+        readings: store.readings.length,
         fileMegabytes: sig(bigBytes.length / 1e6),
         readMs: sig(readTime.ms),
         mergeMs: sig(mergeTime.ms),
@@ -147,7 +162,9 @@ export const exchangeSection: BenchSection = {
         reimportMs: sig(again.ms),
         exportJobs: exportSet.jobs.length,
         exportJsonMs: sig(json.ms),
+        exportJsonCpuMs: sig(json.cpuMs),
         exportCsvMs: sig(csv.ms),
+        exportCsvCpuMs: sig(csv.cpuMs),
         reviewIndexMs: sig(indexTime.ms),
         filterMs: Object.fromEntries(filterRows.map((row) => [row.name, sig(row.ms)])),
       },
