@@ -71,7 +71,7 @@ const TECHNICIANS: readonly TechnicianProfile[] = [
 const EXTRA_FIRST_NAMES = ['Mira', 'Jonah', 'Petra', 'Emeka', 'Solveig', 'Rafael', 'Hana', 'Declan', 'Yusra', 'Bram'];
 const EXTRA_LAST_NAMES = ['Fenwick', 'Oduya', 'Lindqvist', 'Carrow', 'Mabry', 'Teague', 'Vossberg', 'Hallam'];
 
-const PLACES = ['Millbrook', 'Foxley', 'Harrow End', 'Greywell', 'Aldmoor', 'Wickham Vale', 'Larkspur Row', 'Thornbury Cross', 'Ebbside', 'Kettle Green', 'Marsh Lane', 'Oakhollow', 'Sallow Bridge', 'Penhale', 'Quarry Hill'];
+const PLACES = ['Millwray', 'Foxmere', 'Harrowend', 'Greywick', 'Aldmoor', 'Wickby Vale', 'Larkspur Row', 'Thornwick Cross', 'Ebbside', 'Kettlemere', 'Marshcote', 'Oakhollow', 'Sallowbridge', 'Penwhistle', 'Quarrymede'];
 const BUSINESSES = ['Laundrette', 'Care Home', 'Bakery', 'Primary School', 'Dental Practice', 'Café', 'Leisure Centre', 'Guest House', 'Flats Management', 'Print Works', 'Veterinary Surgery', 'Community Hall'];
 const SITES = ['Main building', 'Unit 4', 'Kitchen', 'Plant room', 'Laundry room', 'Flat 12', 'Back office', 'Basement', 'Annexe', 'Staff room'];
 

@@ -70,7 +70,7 @@ describe('CSV of readings', () => {
     const text = toCsv(smallPayload(), { bom: false });
     expect(text.startsWith('job_id,customer,site,technician,')).toBe(true);
     expect(text.endsWith('\r\n')).toBe(true);
-    expect(text).toContain(`,"'+Greywell Café, ""the one by the bridge""","Plant room\nback door",`);
+    expect(text).toContain(`,"'+Greywick Café, ""the one by the bridge""","Plant room\nback door",`);
     expect(text).toContain(`,"'=Tomas ""TB"" Brenner, senior",`);
     expect(text).toContain(`,"Messung bei offenem Deckel, ""warm"""\r\n`);
     expect(quoteField('plain')).toBe('plain');

@@ -18,7 +18,7 @@ function job(id: string, overrides: Partial<Job> = {}): Job {
     createdAt: T0,
     updatedAt: T1,
     startedAt: T0,
-    customer: 'Foxley Bakery',
+    customer: 'Foxmere Bakery',
     site: 'Kitchen',
     assetId: 'asset-1',
     technicianId: 'tech-1',
@@ -42,13 +42,13 @@ export function smallPayload(): JobPayload {
       { id: 'tech-2', name: '=Tomas "TB" Brenner, senior' },
     ],
     assets: [
-      { id: 'asset-1', kind: 'washing machine', make: 'Ostrel', model: 'WM-700', serial: '-00417', tag: '@TAG-7', customer: 'Foxley Bakery', site: 'Kitchen' },
-      { id: 'asset-2', kind: 'boiler', customer: 'Greywell Café', site: 'Plant room\nback door' },
+      { id: 'asset-1', kind: 'washing machine', make: 'Ostrel', model: 'WM-700', serial: '-00417', tag: '@TAG-7', customer: 'Foxmere Bakery', site: 'Kitchen' },
+      { id: 'asset-2', kind: 'boiler', customer: 'Greywick Café', site: 'Plant room\nback door' },
     ],
     jobs: [
       job('job-a'),
       job('job-b', {
-        customer: '+Greywell Café, "the one by the bridge"',
+        customer: '+Greywick Café, "the one by the bridge"',
         site: 'Plant room\nback door',
         assetId: 'asset-2',
         technicianId: 'tech-2',

@@ -45,7 +45,7 @@ const filters: fc.Arbitrary<ReviewFilter> = fc.record(
     to: time,
     faults: fc.subarray(['', 'capacitor-low', 'diode-open', 'no-ac', 'overload', 'line-low', 'capacitor-esr']),
     topologies: fc.subarray(['half-wave', 'center-tap', 'bridge', 'doubler'] as const),
-    customer: fc.constantFrom('laundrette', 'FOXLEY', 'kitchen', ' care ', 'nowhere'),
+    customer: fc.constantFrom('laundrette', 'FOXMERE', 'kitchen', ' care ', 'nowhere'),
     assetId: fc.constantFrom(...shop.assets.slice(0, 5).map((a) => a.id)),
     asset: fc.constantFrom('boiler', 'wm-', 'tag-0', 'zz'),
   },
