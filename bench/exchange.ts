@@ -173,7 +173,8 @@ export const exchangeSection: BenchSection = {
 };
 
 // Run on its own: `npx tsx bench/exchange.ts [--exchange-jobs=N]`.
-if (import.meta.url === `file://${process.argv[1]}`) {
+// (Not when bundled into bench/run.ts by scripts/run-bench.mjs: then this module has another URL.)
+if (import.meta.url.endsWith('/bench/exchange.ts') && import.meta.url === `file://${process.argv[1]}`) {
   const flags = new Map<string, string>();
   for (const arg of process.argv.slice(2)) {
     const m = /^--([^=]+)(?:=(.*))?$/.exec(arg);
