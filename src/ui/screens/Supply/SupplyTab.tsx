@@ -186,7 +186,8 @@ export function SupplyTab({ data, actions, diagnosis }: TabProps) {
         <legend>Rectifier and filter</legend>
         <div class="field">
           <label for="supply-diodeKind">Diodes</label>
-          <select id="supply-diodeKind" value={form.diodeKind} onChange={(event) => change({ diodeKind: event.currentTarget.value as DiodePresetName })}>
+          <span class="hint" id="supply-diodeKind-hint">Sets the drop across each diode: about 0.7–1 V silicon, less for Schottky.</span>
+          <select id="supply-diodeKind" aria-describedby="supply-diodeKind-hint" value={form.diodeKind} onChange={(event) => change({ diodeKind: event.currentTarget.value as DiodePresetName })}>
             {DIODES.map((d) => (
               <option key={d.kind} value={d.kind}>{d.name}</option>
             ))}
@@ -204,7 +205,8 @@ export function SupplyTab({ data, actions, diagnosis }: TabProps) {
         <legend>Regulator and load</legend>
         <div class="field">
           <label for="supply-regulatorKind">Regulator</label>
-          <select id="supply-regulatorKind" value={form.regulatorKind} onChange={(event) => change({ regulatorKind: event.currentTarget.value as RegulatorKind })}>
+          <span class="hint" id="supply-regulatorKind-hint">What comes after the capacitor: a three-pin regulator (78xx, LM317, LDO), a zener, or nothing.</span>
+          <select id="supply-regulatorKind" aria-describedby="supply-regulatorKind-hint" value={form.regulatorKind} onChange={(event) => change({ regulatorKind: event.currentTarget.value as RegulatorKind })}>
             {REGULATORS.map((r) => (
               <option key={r.kind} value={r.kind}>{r.name}</option>
             ))}
