@@ -218,3 +218,12 @@ describe('several job fields at once', () => {
     db2.close();
   });
 });
+
+describe('record ids', () => {
+  it('builds version-4 UUID text from random bytes where randomUUID is missing (RFC 9562 §5.4)', async () => {
+    const { uuidFromBytes } = await import('../../src/store/ids');
+    const id = uuidFromBytes(new Uint8Array(16).fill(0xff));
+    expect(id).toBe('ffffffff-ffff-4fff-bfff-ffffffffffff');
+    expect(uuidFromBytes(new Uint8Array(16))).toMatch(/^00000000-0000-4000-8000-000000000000$/);
+  });
+});
