@@ -188,7 +188,12 @@ describe.runIf(gate.run)(`diagnosis of faulted units (${REFERENCE_SOURCE})`, () 
         if (made === null) continue;
         const truth = fault.startsWith('healthy') ? 'healthy' : fault;
         it(`${fault}: ranked ${lookAlikes(unit).some((g) => g.includes(truth)) ? 'within the first two' : 'first'}${truth === 'healthy' ? ', not flagged' : ''}`, () => {
-          const readings = readingsFromReference(unit, made.spec, made.lineFactor);
+          let readings: ReadingsInput;
+          try {
+            readings = readingsFromReference(unit, made.spec, made.lineFactor);
+          } catch (error) {
+            throw new Error(`${unit.name}, ${fault}: ${(error as Error).message}`);
+          }
           const d = diagnoseReadings(prepare(), readings);
           const rank = d.ranked.findIndex((r) => r.fault === truth) + 1;
           table.push(
@@ -200,7 +205,7 @@ describe.runIf(gate.run)(`diagnosis of faulted units (${REFERENCE_SOURCE})`, () 
           expect(rank).toBeLessThanOrEqual(allowed);
           if (rank === 2) expect(group).toContain(d.ranked[0]!.fault);
           if (truth === 'healthy') expect(d.unexplained).toBe(false);
-        });
+        }, 120_000);
       }
     });
   }

@@ -430,7 +430,8 @@ export function referenceMeasures(spec: SupplySpec, options: ReferenceOptions = 
     }
     // Geometric tail d2·ρ/(1 − ρ) estimates what the drift still has to go.
     const rho = d1 > 0 ? d2 / d1 : 0;
-    const noiseVolts = 1e-8 * vm;
+    // Below ngspice's own resolution (its RELTOL of the peak) a drift is noise, not settling.
+    const noiseVolts = Math.max(1e-8, relTol) * vm;
     const remaining = d2 <= noiseVolts ? 0 : rho < 1 ? (d2 * rho) / (1 - rho) : Infinity;
 
     if (integralChange <= tolerance && extremeChange <= extremeTolerance && remaining <= tolerance * vm * 0.1) {

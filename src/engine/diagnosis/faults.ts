@@ -21,7 +21,7 @@ export interface FaultInfo {
 }
 
 export const FAULTS: Record<FaultId, FaultInfo> = {
-  healthy: { id: 'healthy', name: 'Supply healthy', prior: 0.12 },
+  healthy: { id: 'healthy', name: 'Supply healthy', prior: 0.16 },
   'no-ac': { id: 'no-ac', name: 'No AC: mains, fuse, thermal fuse or winding', prior: 0.14 },
   'line-low': { id: 'line-low', name: 'Mains low', prior: 0.04 },
   'line-high': { id: 'line-high', name: 'Mains high or wrong tap', prior: 0.02 },
@@ -222,7 +222,7 @@ export function faultVariants(spec: SupplySpec, mains: MainsBand): FaultVariant[
       groups.flatMap((g) =>
         // From where the ESR starts to show in the live readings to a nearly open part; a mildly
         // raised ESR looks healthy from outside and is left to the ESR meter.
-        [8, 30, 120].map((m) => {
+        [12, 40, 120].map((m) => {
           const s = clone(spec);
           const esrs = [...esr];
           for (const q of g) {
