@@ -4,7 +4,7 @@ import { useState } from 'preact/hooks';
 export const SAFETY_ITEMS: readonly string[] = [
   'My meter and leads are rated for this place: CAT II for plug-in appliances, CAT III at a distribution board or fixed wiring.',
   'I have checked the meter on a known live source, and will check it again after (live-dead-live).',
-  'I work de-energised where I can: isolated, locked out and tagged, proven dead. Live readings one hand at a time, away from bare metal.',
+  'I work de-energised where I can: isolated, locked out and tagged, proven dead. Live readings with one hand, the other clear of the unit and of bare metal.',
   'Filter capacitors can hold a dangerous charge after unplugging: I discharge through a rated resistor and measure before touching or using ohms, diode or capacitance modes.',
   'Local codes, my employer’s rules and licensed practice come first; these figures only help the diagnosis.',
 ];
