@@ -59,6 +59,9 @@ async function measure(): Promise<AppBudgetSummary> {
   }
   const port = await freePort();
   const server = spawn(process.execPath, [`${ROOT}node_modules/vite/bin/vite.js`, 'preview', '--outDir', out, '--host', '127.0.0.1', '--port', String(port), '--strictPort'], { cwd: ROOT, stdio: 'ignore' });
+  // The server must not outlive the bench, however it ends.
+  const stopServer = () => server.exitCode === null && server.kill('SIGTERM');
+  process.once('exit', stopServer);
   const url = `http://127.0.0.1:${port}/`;
   const context = await (async () => {
     for (let i = 0; i < 100; i++) {
@@ -74,7 +77,10 @@ async function measure(): Promise<AppBudgetSummary> {
       viewport: { width: 390, height: 844 },
       args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
     });
-  })();
+  })().catch((error: unknown) => {
+    stopServer();
+    throw error;
+  });
   try {
     const page = context.pages()[0] ?? (await context.newPage());
     // First visit: every script fetched until the first screen is usable.
@@ -138,7 +144,7 @@ async function measure(): Promise<AppBudgetSummary> {
     };
   } finally {
     await context.close();
-    server.kill('SIGTERM');
+    stopServer();
     rmSync(profile, { recursive: true, force: true });
     rmSync(out, { recursive: true, force: true });
   }
