@@ -84,6 +84,8 @@ export default async function setup(project: TestProject): Promise<() => Promise
     cwd: ROOT,
     stdio: ['ignore', 'ignore', 'inherit'],
   });
+  // However the run ends, the server goes with it.
+  process.once('exit', () => child.exitCode === null && child.kill('SIGKILL'));
   const baseUrl = `http://127.0.0.1:${port}/`;
   try {
     await waitForServer(baseUrl, child, 30_000);
