@@ -63,8 +63,8 @@ export function JobsScreen() {
 
   return (
     <section class="screen jobs-screen" aria-labelledby="jobs-title">
-      <div class="title-row" id="jobs-title">
-        <ScreenTitle focus={false}>Jobs</ScreenTitle>
+      <div class="title-row">
+        <ScreenTitle focus={false} id="jobs-title">Jobs</ScreenTitle>
         <a class="button primary small" href="#/new">New job</a>
       </div>
       <div class="field search">
