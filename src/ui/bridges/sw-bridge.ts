@@ -20,10 +20,8 @@ export async function startServiceWorker(onUpdateReady: (accept: () => void) => 
       wb.messageSkipWaiting();
     });
   });
+  // The app itself asks the network for nothing more: the browser checks sw.js for a new version
+  // when the app is opened, and that is the only request an installed app leaves to the network.
   await wb.register();
-  // Look for a new version when the app comes back to the front (a phone keeps it open for days).
-  document.addEventListener('visibilitychange', () => {
-    if (document.visibilityState === 'visible') void wb.update().catch(() => undefined);
-  });
   return true;
 }
