@@ -112,7 +112,7 @@ async function measure(): Promise<AppBudgetSummary> {
     });
     await page.getByRole('button', { name: 'Try with demo data' }).click();
     await page.waitForFunction(() => document.querySelectorAll('.job-card').length >= 6, null, { timeout: 60_000 });
-    await page.locator('.job-card', { hasText: 'Penhale Bakery' }).click();
+    await page.locator('.job-card', { hasText: 'Penwhistle Bakery' }).click();
     await page.getByRole('heading', { name: 'Safety first' }).waitFor();
     for (const box of await page.locator('.safety-check input[type=checkbox]').all()) await box.check();
     await page.getByRole('button', { name: 'Start the readings' }).click();

@@ -52,8 +52,8 @@ export interface DemoJob {
 export const DEMO_JOBS: readonly DemoJob[] = [
   {
     technician: 'Ada Quill',
-    customer: 'Foxley Laundrette',
-    site: 'Unit 4, Marsh Lane',
+    customer: 'Foxmere Laundrette',
+    site: 'Unit 4, Marshcote Yard',
     asset: { key: 'washer-7', kind: 'washing machine', make: 'Ostrel', model: 'WM-612', serial: 'OS612-40917', tag: 'M7' },
     complaint: 'Resets mid-cycle, worse in the afternoon',
     startedHoursAgo: 24 * 92 + 3,
@@ -73,7 +73,7 @@ export const DEMO_JOBS: readonly DemoJob[] = [
   },
   {
     technician: 'Tomas Brenner',
-    customer: 'Greywell Care Home',
+    customer: 'Greywick Care Home',
     site: 'Plant room',
     asset: { key: 'boiler-2', kind: 'boiler', make: 'Hestwick', model: 'BX-24', serial: 'HW24-0081193' },
     complaint: 'Relays chatter, display dim',
@@ -95,7 +95,7 @@ export const DEMO_JOBS: readonly DemoJob[] = [
   },
   {
     technician: 'Inès Marlow',
-    customer: 'Sallow Bridge Dental Practice',
+    customer: 'Sallowbridge Dental Practice',
     site: 'Back office, ceiling void',
     asset: { key: 'ahu-1', kind: 'air handler', make: 'Tamberlin', model: 'AH-40', serial: 'TMB-AH40-5521', tag: 'AHU-1' },
     complaint: 'Trips out after ten minutes, board runs hot',
@@ -117,7 +117,7 @@ export const DEMO_JOBS: readonly DemoJob[] = [
   },
   {
     technician: 'Ada Quill',
-    customer: 'Kettle Green Café',
+    customer: 'Kettlemere Café',
     site: 'Kitchen',
     asset: { key: 'dryer-1', kind: 'tumble dryer', make: 'Vessmark', model: 'TD-90', serial: 'VM90-33710' },
     complaint: 'Stopped once last week, fine since',
@@ -138,8 +138,8 @@ export const DEMO_JOBS: readonly DemoJob[] = [
   },
   {
     technician: 'Ada Quill',
-    customer: 'Foxley Laundrette',
-    site: 'Unit 4, Marsh Lane',
+    customer: 'Foxmere Laundrette',
+    site: 'Unit 4, Marshcote Yard',
     asset: { key: 'washer-7', kind: 'washing machine', make: 'Ostrel', model: 'WM-612', serial: 'OS612-40917', tag: 'M7' },
     complaint: 'Display flickers, resets again',
     startedHoursAgo: 0.7,
@@ -150,7 +150,7 @@ export const DEMO_JOBS: readonly DemoJob[] = [
   },
   {
     technician: 'Tomas Brenner',
-    customer: 'Penhale Bakery',
+    customer: 'Penwhistle Bakery',
     site: 'Shop floor',
     asset: { key: 'fridge-3', kind: 'fridge-freezer', make: 'Polvane', model: 'FZ-300', serial: 'PV300-771204' },
     complaint: 'Display dead, compressor runs',

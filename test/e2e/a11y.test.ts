@@ -56,7 +56,7 @@ describe.skipIf(SKIP_REASON !== '')(`accessibility of the main screens${SKIP_REA
       // An open job from the demo, tab by tab.
       await page.locator('.app-nav').getByRole('link', { name: 'Jobs' }).click();
       await waitForJobs(page);
-      await page.locator('.job-card', { hasText: 'Penhale Bakery' }).click();
+      await page.locator('.job-card', { hasText: 'Penwhistle Bakery' }).click();
       await page.getByRole('heading', { name: 'Safety first' }).waitFor();
       await check(page, 'a11y-test-safety');
       for (const box of await page.locator('.safety-check input[type=checkbox]').all()) await box.check();

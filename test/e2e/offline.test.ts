@@ -26,7 +26,7 @@ describe.skipIf(SKIP_REASON !== '')(`offline after the first visit${SKIP_REASON 
       await page.reload();
       await waitForJobs(page);
       await loadDemo(page);
-      await page.locator('.job-card', { hasText: 'Foxley Laundrette' }).filter({ hasText: 'Open' }).click();
+      await page.locator('.job-card', { hasText: 'Foxmere Laundrette' }).filter({ hasText: 'Open' }).click();
       await page.getByRole('heading', { name: /^Test/, level: 1 }).waitFor();
       const step = await takeStep(page);
       expect(step.kind).not.toBe('done');

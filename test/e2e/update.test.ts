@@ -14,7 +14,7 @@ describe.skipIf(SKIP_REASON !== '')(`a new version${SKIP_REASON ? ` (skipped: ${
       await waitForJobs(page);
       await waitForServiceWorker(page);
       await loadDemo(page);
-      await page.locator('.job-card', { hasText: 'Foxley Laundrette' }).filter({ hasText: 'Open' }).click();
+      await page.locator('.job-card', { hasText: 'Foxmere Laundrette' }).filter({ hasText: 'Open' }).click();
       await page.getByRole('heading', { name: /^Test/, level: 1 }).waitFor();
       await takeStep(page);
       await waitForSaved(page);

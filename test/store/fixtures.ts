@@ -16,7 +16,7 @@ export function openFresh(options: OpenOptions = {}) {
 }
 
 export function assetFixture(overrides: Partial<Asset> = {}): Asset {
-  return { id: crypto.randomUUID(), kind: 'washing machine', make: 'Halden', model: 'WX-7', serial: 'SN-001', customer: 'R. Alvarez', site: '14 Quarry Lane', ...overrides };
+  return { id: crypto.randomUUID(), kind: 'washing machine', make: 'Haldwick', model: 'WX-7', serial: 'SN-001', customer: 'R. Alvarez', site: '14 Quarry Lane', ...overrides };
 }
 
 export function jobFixture(overrides: Partial<Job> = {}): Job {

@@ -25,7 +25,7 @@ describe('the demo shop', () => {
     expect(jobs.filter((j) => j.status === 'open')).toHaveLength(DEMO_JOBS.filter((d) => d.finish === undefined).length);
     const today = jobs.filter((j) => j.status === 'open').map((j) => new Date(j.createdAt).toDateString());
     expect(new Set(today)).toEqual(new Set([new Date(now).toDateString()]));
-    const washer = jobs.filter((j) => j.customer === 'Foxley Laundrette');
+    const washer = jobs.filter((j) => j.customer === 'Foxmere Laundrette');
     expect(new Set(washer.map((j) => j.assetId)).size).toBe(1);
     expect((await readingsForAsset(db, washer[0]!.assetId!)).length).toBeGreaterThan((await readingsForJob(db, washer[0]!.id)).length);
   });
