@@ -45,6 +45,21 @@ function uniformSteps(count: number, periodSeconds: number): Float64Array {
 }
 
 /**
+ * Forward peak current of each diode, or 0 for a diode that does not really conduct: below
+ * 1 nA, or below a thousandth of the largest diode's peak (a diode that never conducts still
+ * shows leakage, whose wiggles are not pulses).
+ */
+function conductingPeaks(iDiode: Float64Array[]): number[] {
+  const peaks = iDiode.map((cur) => {
+    let peak = 0;
+    for (let n = 0; n < cur.length; n++) peak = Math.max(peak, cur[n]!);
+    return peak;
+  });
+  const largest = Math.max(0, ...peaks);
+  return peaks.map((p) => (p > 1e-9 && p >= 1e-3 * largest ? p : 0));
+}
+
+/**
  * The refined grid: coarse steps where no diode conducts, split steps where one does.
  * @param iDiode  diode currents on the coarse grid (N+1 points each)
  * @param coarse  the coarse step lengths (N)
@@ -52,10 +67,11 @@ function uniformSteps(count: number, periodSeconds: number): Float64Array {
 function conductionSteps(iDiode: Float64Array[], coarse: Float64Array): Float64Array {
   const N = coarse.length;
   const active = new Uint8Array(N);
-  for (const cur of iDiode) {
-    let peak = 0;
-    for (let n = 0; n <= N; n++) peak = Math.max(peak, cur[n]!);
-    if (!(peak > 1e-9)) continue;
+  const peaks = conductingPeaks(iDiode);
+  for (let d = 0; d < iDiode.length; d++) {
+    const cur = iDiode[d]!;
+    const peak = peaks[d]!;
+    if (peak === 0) continue;
     const thr = CONDUCTING_FRACTION * peak;
     for (let n = 0; n < N; n++) if (cur[n]! > thr || cur[n + 1]! > thr) active[n] = 1;
   }
@@ -239,10 +255,11 @@ function finerSteps(iDiode: Float64Array[], steps: Float64Array): Float64Array |
       split[i] = Math.max(split[i]!, Math.min(MAX_SPLIT, k));
     }
   };
-  for (const cur of iDiode) {
-    let peak = 0;
-    for (let n = 0; n <= N; n++) peak = Math.max(peak, Math.abs(cur[n]!));
-    if (!(peak > 1e-9)) continue;
+  const peaks = conductingPeaks(iDiode);
+  for (let d = 0; d < iDiode.length; d++) {
+    const cur = iDiode[d]!;
+    const peak = peaks[d]!;
+    if (peak === 0) continue;
     for (let n = 0; n < N; n++) {
       const jump = Math.abs(cur[n + 1]! - cur[n]!) / peak;
       if (jump > EDGE_FRACTION) want(n, Math.ceil(jump / EDGE_FRACTION) * 2);
@@ -330,10 +347,11 @@ function assemble(
 function gridResolvesConduction(iDiode: Float64Array[], steps: Float64Array): boolean {
   let shortest = Infinity;
   for (const h of steps) shortest = Math.min(shortest, h);
-  for (const cur of iDiode) {
-    let peak = 0;
-    for (const i of cur) peak = Math.max(peak, i);
-    if (!(peak > 1e-9)) continue;
+  const peaks = conductingPeaks(iDiode);
+  for (let d = 0; d < iDiode.length; d++) {
+    const cur = iDiode[d]!;
+    const peak = peaks[d]!;
+    if (peak === 0) continue;
     const thr = CONDUCTING_FRACTION * peak;
     for (let n = 0; n < steps.length; n++) {
       if ((cur[n]! > thr || cur[n + 1]! > thr) && steps[n]! > 2.01 * shortest) return false;

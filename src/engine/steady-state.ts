@@ -93,8 +93,10 @@ class Stepper {
   readonly v: Float64Array;
   readonly vTry: Float64Array;
   readonly scratch = new Float64Array(2);
-  /** Warm-start junction voltages per diode. */
+  /** Warm-start junction voltages per diode, with the terminal voltage and slope they were for. */
   readonly vj: Float64Array;
+  readonly vdLast: Float64Array;
+  readonly gLast: Float64Array;
   /** Per-capacitor companion conductance and history current for the current step. */
   readonly geq: Float64Array;
   readonly hist: Float64Array;
@@ -118,6 +120,8 @@ class Stepper {
     this.v = new Float64Array(this.m);
     this.vTry = new Float64Array(this.m);
     this.vj = new Float64Array(c.diodes.length).fill(Number.NaN);
+    this.vdLast = new Float64Array(c.diodes.length);
+    this.gLast = new Float64Array(c.diodes.length);
     this.geq = new Float64Array(this.k);
     this.hist = new Float64Array(this.k);
     this.gc = new Float64Array(this.k);
@@ -209,7 +213,13 @@ class Stepper {
       const el = c.diodes[d]!;
       if (el.junction === null) continue;
       const vd = this.volt(v, el.anode) - this.volt(v, el.cathode);
-      this.vj[d] = evalJunction(el.junction, vd, this.vj[d]!, out);
+      // Warm start: the last junction voltage moved to first order with the terminal voltage,
+      // dVj/dV = 1 − R·g (the series resistance takes the rest).
+      const r = el.junction.ohms;
+      const guess = this.vj[d]! + (vd - this.vdLast[d]!) * (1 - r * this.gLast[d]!);
+      this.vj[d] = evalJunction(el.junction, vd, guess, out);
+      this.vdLast[d] = vd;
+      this.gLast[d] = out[1]!;
       this.stampI(el.anode, el.cathode, out[0]!);
       this.stampG(el.anode, el.cathode, out[1]!);
     }
@@ -254,7 +264,10 @@ class Stepper {
       // a floating winding while every diode is off, held only by leakage and gmin.
       let residual = 0;
       for (let n = 0; n < m; n++) residual = Math.max(residual, Math.abs(this.rhs[n]!));
-      if (it > 0 && residual <= RESIDUAL_AMPS) return true;
+      if (residual <= RESIDUAL_AMPS) {
+        // Leave the Jacobian at this point factored, for the step's sensitivities.
+        return luFactor(this.jac, m, this.piv);
+      }
       if (!luFactor(this.jac, m, this.piv)) return false;
       luSolve(this.jac, m, this.piv, this.rhs);
       let worst = 0;
@@ -266,7 +279,9 @@ class Stepper {
         const ratio = Math.abs(dv) / tol;
         if (ratio > worst) worst = ratio;
       }
-      // Converged on the voltages: quadratic convergence leaves an error far below the step.
+      // Converged on the voltages: quadratic convergence leaves an error far below the step,
+      // and the factored Jacobian, taken one update of at most a microvolt or so earlier, is
+      // that of the converged point for the sensitivities (a diode's slope moves by Δ/nVt).
       if (worst <= 1) return true;
     }
     return false;
@@ -356,14 +371,10 @@ function step(
   saved.set(st.v);
   st.setCompanions(h, hPrev, s);
   if (st.newton(t + h)) {
-    if (stepJac !== null) {
-      // The sensitivity needs the Jacobian at the converged point: the last Newton matrix was
-      // taken one update earlier, and through a stiff diode that is a different slope (the
-      // shooting then crawls).
-      st.assemble(st.v);
-      luFactor(st.jac, st.m, st.piv);
-      stepSensitivity(st, stepJac);
-    }
+    // The sensitivities use the Jacobian at the converged point, which newton() leaves factored:
+    // a Jacobian from far off the point (a looser tolerance) makes the shooting crawl through
+    // stiff diodes.
+    if (stepJac !== null) stepSensitivity(st, stepJac);
     st.advanceState(s);
     return true;
   }
