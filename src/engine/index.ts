@@ -24,7 +24,7 @@ export { estimateSupply } from './estimates';
  */
 const UNFILTERED_STEPS = 256;
 const COARSE_STEPS = 64;
-const POINTS_PER_PULSE = 64;
+const POINTS_PER_PULSE = 48;
 const MAX_STEPS = 4096;
 /** A diode counts as conducting above this fraction of its own peak current. */
 const CONDUCTING_FRACTION = 0.005;
@@ -236,7 +236,7 @@ export function solveSupply(spec: SupplySpec, options: SolveOptions = {}): Suppl
 /** Largest change of a diode's current over one step, as a fraction of its peak (our rule). */
 const EDGE_FRACTION = 0.25;
 /** Fewest steps wanted inside a conduction pulse on the refined grid (our rule). */
-const MIN_PULSE_STEPS = 32;
+const MIN_PULSE_STEPS = 24;
 const MAX_SPLIT = 8;
 
 /**

@@ -108,6 +108,8 @@ class Stepper {
   /** Sensitivity columns J⁻¹·(e_plus − e_minus), [k × m]. */
   readonly sens: Float64Array;
   readonly omega: number;
+  /** 1/(2·w) for the circuit's sharpest law: the error left after a Newton update Δ is ~Δ²·this. */
+  readonly quadraticGain: number;
 
   constructor(readonly c: Circuit) {
     this.m = c.nodeCount;
@@ -130,6 +132,12 @@ class Stepper {
     this.a2ch = new Float64Array(this.k);
     this.sens = new Float64Array(this.k * this.m);
     this.omega = 2 * Math.PI * c.hz;
+    let sharpest = ZENER_KNEE;
+    for (const d of c.diodes) {
+      if (d.junction === null) continue;
+      sharpest = Math.min(sharpest, d.junction.kind === 'shockley' ? d.junction.thermalVolts : d.junction.kneeVolts);
+    }
+    this.quadraticGain = 1 / (2 * sharpest);
   }
 
   /** Adds conductance g between nodes a and b to the Jacobian. */
@@ -271,6 +279,7 @@ class Stepper {
       if (!luFactor(this.jac, m, this.piv)) return false;
       luSolve(this.jac, m, this.piv, this.rhs);
       let worst = 0;
+      let biggest = 0;
       for (let n = 0; n < m; n++) {
         const dv = -this.rhs[n]!;
         if (!Number.isFinite(dv)) return false;
@@ -278,7 +287,12 @@ class Stepper {
         const tol = VOLT_ABS + VOLT_REL * Math.abs(v[n]!);
         const ratio = Math.abs(dv) / tol;
         if (ratio > worst) worst = ratio;
+        if (Math.abs(dv) > biggest) biggest = Math.abs(dv);
       }
+      // Quadratic convergence: after an update of Δ the error is about Δ²/(2·w) for the
+      // sharpest exponential law in the circuit (w = nVt of a diode, or a smoothed knee's
+      // width), so a small enough first update already meets the tolerance.
+      if (biggest * biggest * this.quadraticGain <= VOLT_ABS) return true;
       // Converged on the voltages: quadratic convergence leaves an error far below the step,
       // and the factored Jacobian, taken one update of at most a microvolt or so earlier, is
       // that of the converged point for the sensitivities (a diode's slope moves by Δ/nVt).
