@@ -236,6 +236,20 @@ describe('diagnosis contract', () => {
     expect(d.unexplained).toBe(true);
   });
 
+  it('with a cause at 90 % or more it asks for that cause\'s confirming test, then for nothing', () => {
+    // DOMAIN.md §7: an open diode is confirmed by a diode test reading OL both ways.
+    const r = expectReadings({ ...bridge, diodeCondition: { D2: 'open' } });
+    const live = { acSecondary: r.secondaryRms, dcOut: r.dc, rippleAc: r.rippleRms, rippleHz: r.rippleHz };
+    const d = diagnoseReadings(prepared, live);
+    expect(d.ranked[0]!.fault).toBe('diode-open');
+    expect(d.ranked[0]!.probability).toBeGreaterThan(0.9);
+    const part = d.ranked[0]!.part!;
+    expect(d.next).toMatchObject({ kind: 'diodeForward', target: part, powerOff: true, caution: DISCHARGE_CAUTION });
+    const done = diagnoseReadings(prepared, { ...live, diodeTest: { [part]: { forward: 'OL', reverse: 'OL' } } });
+    expect(done.ranked[0]!.fault).toBe('diode-open');
+    expect(done.next).toBeNull();
+  });
+
   it('the one-shot form gives the same answer as prepare then diagnose', () => {
     const readings = { dcOut: 14.1, rippleAc: 0.5 };
     expect(diagnose({ spec: bridge, readings })).toEqual(diagnoseReadings(prepared, readings));

@@ -140,26 +140,28 @@ function reasonFor(fault: FaultId, variant: SimulatedVariant, model: SupplyModel
   const topo = model.spec.topology;
   const f = model.spec.source.hz;
   const hzReading = verdicts.find((v) => v.kind === 'rippleHz');
-  const fullWave = topo !== 'half-wave';
+  const atLineHz = hzReading !== undefined && typeof hzReading.value === 'number' && Math.abs(hzReading.value - f) < 0.15 * f;
+  // Each reason says what the fault looks like on the meter (DOMAIN.md §7), so it reads true
+  // whichever readings have been taken; the readings that point to it follow.
   let core: string;
   switch (fault) {
     case 'healthy':
-      core = 'The readings sit inside the bands of a unit whose parts are within tolerance.';
+      core = verdicts.length === 0 ? 'No readings yet.' : 'The readings sit inside the bands of a unit whose parts are within tolerance.';
       break;
     case 'no-ac':
       core = 'Nothing at the secondary: mains missing, a fuse or thermal fuse open, or a winding open.';
       break;
     case 'line-low':
-      core = 'Secondary and DC low together, ripple about normal: the mains itself is low.';
+      core = 'Low mains brings the secondary and the DC down together, ripple about normal.';
       break;
     case 'line-high':
-      core = 'Secondary and DC high together: the mains is high or the wrong tap is selected.';
+      core = 'High mains (or the wrong tap) lifts the secondary and the DC together.';
       break;
     case 'diode-open':
       core =
         topo === 'half-wave'
-          ? 'AC present but no DC out on a half-wave supply: the diode is not conducting.'
-          : hzReading && typeof hzReading.value === 'number' && Math.abs(hzReading.value - f) < 0.15 * f
+          ? 'With its diode open a half-wave supply has AC in but no DC out.'
+          : atLineHz
             ? `Ripple at ${f} Hz on a full-wave supply: one diode is not conducting (${variant.part}); DC a little low, ripple about doubled.`
             : `One diode not conducting (${variant.part}) turns the supply half-wave: DC a little low, ripple about doubled and at ${f} Hz.`;
       break;
@@ -167,25 +169,24 @@ function reasonFor(fault: FaultId, variant: SimulatedVariant, model: SupplyModel
       core = `A shorted diode (${variant.part}) shorts the secondary on one half-cycle: the secondary collapses or the fuse blows.`;
       break;
     case 'capacitor-low':
-      core = `Ripple up and DC down with the AC normal: the filter capacitor (${variant.part}) has lost capacitance.`;
+      core = `A filter capacitor (${variant.part}) that has lost capacitance shows as ripple up and DC down with the AC normal.`;
       break;
     case 'capacitor-open':
-      core = `Very large ripple, DC near the unfiltered average: the filter capacitor (${variant.part}) is open.`;
+      core = `An open filter capacitor (${variant.part}) leaves very large ripple and DC near the unfiltered average.`;
       break;
     case 'capacitor-esr':
-      core = `Ripple up with sharp steps, DC only slightly low: the ESR of ${variant.part} is high.`;
+      core = `A high ESR in ${variant.part} shows as ripple up with sharp steps and DC only slightly low.`;
       break;
     case 'overload':
-      core = 'Secondary sags and ripple rises with the current drawn: the load takes too much (a short downstream?).';
+      core = 'A load that draws too much (a short downstream?) sags the secondary and raises the ripple with the current.';
       break;
     case 'regulator-dropout':
-      core = 'The regulator input dips below its output plus dropout, so ripple passes through to the output.';
+      core = 'When the regulator input dips below its output plus dropout, ripple passes through to the output.';
       break;
     case 'regulator-failed':
       core = `Regulator output wrong while its input is normal: ${variant.label}.`;
       break;
   }
-  void fullWave;
   const outside = verdicts.filter((v) => v.verdict !== 'in').slice(0, 3);
   if (outside.length === 0) return core;
   const evidence = outside
@@ -341,6 +342,7 @@ function nextReading(
     .sort((a, b) => post[b]! - post[a]!)
     .slice(0, 40);
   let best: { c: { kind: ReadingKind; target?: string }; gain: number; score: number } | null = null;
+  const gains: { c: { kind: ReadingKind; target?: string }; gain: number }[] = [];
   for (const c of candidates(model, readings)) {
     const preds = live.map((i) => predictiveFor(model, spread, gaussians[i]!, variants[i]!, c, observed));
     let expectedH = 0;
@@ -365,10 +367,62 @@ function nextReading(
     // Prefer live readings when the gain is close: power-off tests need a discharge first, and
     // a mains reading exposes the technician (our weighting).
     const score = gain * (guide.powerOff ? 0.8 : c.kind === 'mainsAc' ? 0.9 : 1);
+    gains.push({ c, gain });
     if (!best || score > best.score) best = { c, gain, score };
   }
-  if (!best) return null;
+  // A leading cause at 90 % or more: its confirming test next (DOMAIN.md §7, "confirm with
+  // power off"), then nothing more to ask; otherwise the best reading, if it still tells
+  // anything (at least 0.01 bit).
+  let top = 0;
+  for (let f = 1; f < faults.length; f++) if (prior[f]! > prior[top]!) top = f;
+  if (prior[top]! >= 0.9) {
+    const topVariant = variants.reduce((b, v, i) => (v.fault === faults[top] && post[i]! > post[b]! ? i : b), variants.findIndex((v) => v.fault === faults[top]));
+    const confirm = confirmingReading(faults[top]!, variants[topVariant]?.part, model, readings);
+    if (confirm === null) return null;
+    const guide = readingGuide(model.spec.topology, confirm.kind, confirm.target, model.meter.kind);
+    const scored = gains.find((g) => g.c.kind === confirm.kind && g.c.target === confirm.target);
+    guide.gainBits = scored?.gain ?? 0;
+    return guide;
+  }
+  if (!best || best.gain < 0.01) return null;
   const guide = readingGuide(model.spec.topology, best.c.kind, best.c.target, model.meter.kind);
   guide.gainBits = best.gain;
   return guide;
+}
+
+/**
+ * The reading that confirms a fault (DOMAIN.md §7's last column), when not yet taken; null
+ * when it has been, or when the fault has none in this tool's readings (an overload is
+ * confirmed by disconnecting the load, a healthy unit needs nothing).
+ */
+function confirmingReading(fault: FaultId, part: string | undefined, model: SupplyModel, taken: Reading[]): { kind: ReadingKind; target?: string } | null {
+  const has = (kind: ReadingKind, target?: string) => taken.some((r) => r.kind === kind && (target === undefined || r.target === target));
+  const firstCap = (part ?? 'C1').split(' ')[0]!;
+  const wanted: { kind: ReadingKind; target?: string }[] = [];
+  switch (fault) {
+    case 'no-ac':
+    case 'line-low':
+    case 'line-high':
+      wanted.push({ kind: 'mainsAc' });
+      break;
+    case 'diode-open':
+    case 'diode-short':
+      if (part && /^D[1-4]$/.test(part)) wanted.push({ kind: 'diodeForward', target: part }, { kind: 'diodeReverse', target: part });
+      break;
+    case 'capacitor-low':
+    case 'capacitor-open':
+      if (model.spec.capacitors.length > 0) wanted.push({ kind: 'capacitance', target: firstCap });
+      break;
+    case 'capacitor-esr':
+      if (model.spec.capacitors.length > 0) wanted.push({ kind: 'esr', target: firstCap });
+      break;
+    case 'regulator-dropout':
+    case 'regulator-failed':
+      wanted.push({ kind: 'dcOut' }, { kind: 'regulatorOut' });
+      break;
+    case 'healthy':
+    case 'overload':
+      break;
+  }
+  return wanted.find((w) => !has(w.kind, w.target)) ?? null;
 }
