@@ -8,3 +8,4 @@ export * from './drafts';
 export * from './settings';
 export { describeStoreError, requestPersistentStorage } from './errors';
 export { newId, nowIso } from './ids';
+export { idbImportStore, loadExchangePayload, toFileReading } from './exchange';

@@ -10,9 +10,13 @@
  * v1: jobs (by updated time), readings (by job), assets, technicians, settings.
  * v2: the asset history — readings carry their job's asset id and are indexed by it, jobs are
  *     indexed by asset; a drafts store keeps half-typed form text.
+ * v3: imported job files — conflicts (job fields that lost a merge, by job) and recordConflicts
+ *     (asset and technician fields that lost one, by record id), both with generated keys since
+ *     a conflict has no id of its own.
  */
 import type { DBSchema, IDBPDatabase, IDBPTransaction, StoreNames } from 'idb';
-import type { Asset, Job, Reading, Technician } from '../model/job';
+import type { RecordConflict } from '../exchange/format';
+import type { Asset, Job, MergeConflict, Reading, Technician } from '../model/job';
 
 /** A reading as stored: the job record's reading plus its job's asset (for the asset history). */
 export interface StoredReading extends Reading {
@@ -35,6 +39,8 @@ export interface RipplewrightSchema extends DBSchema {
   /** One record per setting group, keyed by its name. */
   settings: { key: string; value: unknown };
   drafts: { key: string; value: Draft };
+  conflicts: { key: number; value: MergeConflict; indexes: { 'by-job': string } };
+  recordConflicts: { key: number; value: RecordConflict; indexes: { 'by-record': string } };
 }
 
 export type Database = IDBPDatabase<RipplewrightSchema>;
@@ -73,6 +79,11 @@ export const MIGRATIONS: ReadonlyArray<(db: Database, tx: UpgradeTransaction) =>
       if (assetId !== undefined && cursor.value.assetId !== assetId) await cursor.update({ ...cursor.value, assetId });
       cursor = await cursor.continue();
     }
+  },
+  // v3
+  (db) => {
+    db.createObjectStore('conflicts', { autoIncrement: true }).createIndex('by-job', 'jobId');
+    db.createObjectStore('recordConflicts', { autoIncrement: true }).createIndex('by-record', 'id');
   },
 ];
 

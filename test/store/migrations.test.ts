@@ -17,19 +17,40 @@ describe('schema migrations', () => {
   it('opens a new device at the current version with every store', async () => {
     const db = await openStore({ name: freshName() });
     expect(db.version).toBe(DB_VERSION);
-    expect([...db.objectStoreNames].sort()).toEqual(['assets', 'drafts', 'jobs', 'readings', 'settings', 'technicians']);
+    expect([...db.objectStoreNames].sort()).toEqual(['assets', 'conflicts', 'drafts', 'jobs', 'readings', 'recordConflicts', 'settings', 'technicians']);
     db.close();
   });
 
-  it('upgrades a version-1 database to the same schema a new device gets', async () => {
+  it.each(Array.from({ length: DB_VERSION - 1 }, (_, i) => i + 1))('upgrades a version-%i database to the same schema a new device gets', async (version) => {
     const name = freshName();
-    const v1 = await openStore({ name, version: 1 });
-    v1.close();
+    const old = await openStore({ name, version });
+    old.close();
     const upgraded = await openStore({ name });
     const fresh = await openStore({ name: freshName() });
     expect(shape(upgraded as unknown as IDBDatabase)).toEqual(shape(fresh as unknown as IDBDatabase));
     upgraded.close();
     fresh.close();
+  });
+
+  it.each([1, 2])('keeps version-%i records through the upgrade to the conflict stores (v3), which start empty', async (version) => {
+    const name = freshName();
+    const asset = assetFixture();
+    const job = jobFixture({ assetId: asset.id });
+    const reading = readingFixture(job.id);
+    const old = await openStore({ name, version });
+    await old.put('assets', asset);
+    await old.put('jobs', job);
+    await old.put('readings', version >= 2 ? { ...reading, assetId: asset.id } : reading);
+    old.close();
+    const v3 = await openStore({ name, version: 3 });
+    expect(await v3.get('jobs', job.id)).toEqual(job);
+    expect(await v3.get('assets', asset.id)).toEqual(asset);
+    expect(await v3.get('readings', reading.id)).toEqual({ ...reading, assetId: asset.id });
+    expect(await v3.count('conflicts')).toBe(0);
+    expect(await v3.count('recordConflicts')).toBe(0);
+    await v3.add('conflicts', { jobId: job.id, field: 'customer', kept: 'a', keptEditedAt: job.createdAt, dropped: 'b', droppedEditedAt: job.createdAt });
+    expect(await v3.getAllFromIndex('conflicts', 'by-job', job.id)).toHaveLength(1);
+    v3.close();
   });
 
   it('keeps version-1 jobs and readings and files old readings under their job’s asset', async () => {

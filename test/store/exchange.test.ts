@@ -1,0 +1,124 @@
+import { describe, expect, it } from 'vitest';
+import { emptyPayload, type JobPayload } from '../../src/exchange/format';
+import { importJobFiles } from '../../src/exchange/import';
+import { sortPayload } from '../../src/exchange/order';
+import { writeJobFile } from '../../src/exchange/write';
+import { idbImportStore, loadExchangePayload } from '../../src/store/exchange';
+import type { Database } from '../../src/store/schema';
+import { smallPayload, T3 } from '../exchange/fixtures';
+import { openFresh } from './fixtures';
+
+const NOW = '2026-12-01T12:00:00.000Z';
+const copy = <T>(value: T): T => JSON.parse(JSON.stringify(value)) as T;
+
+function fileOf(payload: JobPayload, exportedAt = T3): Promise<string> {
+  return writeJobFile(payload, { exportedAt, exportedBy: { device: 'test' } });
+}
+
+/** Every record in every store, as stored (readings with their assetId). */
+async function everything(db: Database) {
+  const stores = ['jobs', 'readings', 'assets', 'technicians', 'conflicts', 'recordConflicts'] as const;
+  return Object.fromEntries(await Promise.all(stores.map(async (name) => [name, await db.getAll(name)] as const)));
+}
+
+describe('the IndexedDB import store', () => {
+  it('stores an imported file so an export gives back the same records', async () => {
+    const db = await openFresh();
+    const payload = smallPayload();
+    const [report] = await importJobFiles([{ name: 'shop.json', content: await fileOf(payload) }], idbImportStore(db), { storeAt: NOW });
+    expect(report?.ok).toBe(true);
+    expect(sortPayload(await loadExchangePayload(db))).toEqual(sortPayload(payload));
+    db.close();
+  });
+
+  it('files imported readings under their job’s asset and strips that field again on export', async () => {
+    const db = await openFresh();
+    await importJobFiles([{ name: 'shop.json', content: await fileOf(smallPayload()) }], idbImportStore(db), { storeAt: NOW });
+    const onAsset1 = (await db.getAllFromIndex('readings', 'by-asset', 'asset-1')).map((r) => r.id).sort();
+    expect(onAsset1).toEqual(['r-1', 'r-2', 'r-3']);
+    expect((await loadExchangePayload(db)).readings.every((r) => !('assetId' in r))).toBe(true);
+    db.close();
+  });
+
+  it('changes nothing when the same file is imported twice', async () => {
+    const db = await openFresh();
+    const store = idbImportStore(db);
+    const text = await fileOf(smallPayload());
+    await importJobFiles([{ name: 'a.json', content: text }], store, { storeAt: NOW });
+    const before = await everything(db);
+    const [again] = await importJobFiles([{ name: 'a.json', content: text }], store, { storeAt: NOW });
+    expect(again?.ok).toBe(true);
+    expect(await everything(db)).toEqual(before);
+    db.close();
+  });
+
+  it('keeps a refused file out entirely while the other files still import', async () => {
+    const db = await openFresh();
+    const other = copy(smallPayload());
+    for (const job of other.jobs) job.id = `x-${job.id}`;
+    for (const r of other.readings) {
+      r.id = `x-${r.id}`;
+      r.jobId = `x-${r.jobId}`;
+      if (r.supersedes) r.supersedes = `x-${r.supersedes}`;
+    }
+    const bad = (await fileOf(other)).replace('"Ada Quill"', '"Ada Quilt"');
+    const reports = await importJobFiles(
+      [
+        { name: 'bad.json', content: bad },
+        { name: 'good.json', content: await fileOf(smallPayload()) },
+      ],
+      idbImportStore(db),
+      { storeAt: NOW },
+    );
+    expect(reports.map((r) => r.ok)).toEqual([false, true]);
+    const stored = await loadExchangePayload(db);
+    expect(stored.jobs.map((j) => j.id).sort()).toEqual(['job-a', 'job-b', 'job-c']);
+    db.close();
+  });
+
+  it('rolls back every write of a transaction whose work fails', async () => {
+    const db = await openFresh();
+    await importJobFiles([{ name: 'a.json', content: await fileOf(smallPayload()) }], idbImportStore(db), { storeAt: NOW });
+    const before = await everything(db);
+    const extra = copy(smallPayload());
+    extra.jobs[0]!.customer = 'Someone else';
+    extra.conflicts = [];
+    await expect(
+      idbImportStore(db).transaction(async (tx) => {
+        await tx.write({ ...emptyPayload(), jobs: extra.jobs, readings: extra.readings.map((r) => ({ ...r, id: `${r.id}-new` })) });
+        throw new Error('disk full');
+      }),
+    ).rejects.toThrow('disk full');
+    expect(await everything(db)).toEqual(before);
+    db.close();
+  });
+
+  it('records a merge’s conflicts and finds them and renamed readings again by id', async () => {
+    const db = await openFresh();
+    const store = idbImportStore(db);
+    await importJobFiles([{ name: 'a.json', content: await fileOf(smallPayload()) }], store, { storeAt: NOW });
+    const changed = copy(smallPayload());
+    const later = '2026-03-05T08:00:00.000Z';
+    changed.jobs[0]!.customer = 'Foxmere Bakery Ltd';
+    changed.jobs[0]!.edits.customer = later;
+    changed.jobs[0]!.updatedAt = later;
+    changed.readings[0]!.value = 13.9; // same id, other value: kept under a renamed id
+    changed.readings[0]!.text = '13.9';
+    changed.assets[0]!.make = 'Ostrell';
+    const [report] = await importJobFiles([{ name: 'b.json', content: await fileOf(changed, later) }], store, { storeAt: NOW });
+    if (!report?.ok) throw new Error('import should succeed');
+    expect(report.newConflicts.map((c) => [c.jobId, c.field])).toEqual([['job-a', 'customer']]);
+    expect(report.newRecordConflicts.map((c) => [c.id, c.field])).toEqual([['asset-1', 'make']]);
+    const renamed = (await db.getAll('readings')).filter((r) => r.id.startsWith('r-1~'));
+    expect(renamed).toHaveLength(1);
+    const read = await store.transaction((tx) => tx.read({ jobs: ['job-a'], readings: ['r-1'], assets: ['asset-1'], technicians: [] }));
+    expect(read.readings.map((r) => r.id).sort()).toEqual(['r-1', renamed[0]!.id]);
+    expect(read.conflicts).toHaveLength(1);
+    expect(read.recordConflicts).toHaveLength(1);
+    // And importing that second file again adds nothing.
+    const before = await everything(db);
+    await importJobFiles([{ name: 'b.json', content: await fileOf(changed, later) }], store, { storeAt: NOW });
+    expect(await everything(db)).toEqual(before);
+    db.close();
+  });
+});
