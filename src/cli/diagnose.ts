@@ -1,9 +1,8 @@
-import { createReadStream } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import type { Readable } from 'node:stream';
 import { diagnose, type DiagnoseInput, type Diagnosis } from '../engine/diagnosis';
 import { EXIT_FAILED, EXIT_OK, parseCommandArgs, readAllText, UsageError, writeText, type Command } from './command';
-import { describeFailure, describeReadError, jsonLinesBatch } from './json-lines';
+import { describeFailure, describeReadError, jsonLinesBatch, openLineInput } from './json-lines';
 
 const USAGE = `Usage:
   ripplewright diagnose FILE         rank the likely faults for the readings in FILE (JSON)
@@ -100,19 +99,12 @@ export const diagnoseCommand: Command = {
       await writeText(io.stdout, `${JSON.stringify(result, null, 2)}\n`);
       return EXIT_OK;
     }
-    let input: Readable = io.stdin;
-    if (args.source !== '-') {
-      const stream = createReadStream(args.source);
-      try {
-        await new Promise<void>((resolve, reject) => {
-          stream.once('open', () => resolve());
-          stream.once('error', reject);
-        });
-      } catch (error) {
-        await writeText(io.stderr, `ripplewright diagnose: cannot read ${args.source}: ${describeReadError(error)}\n`);
-        return EXIT_FAILED;
-      }
-      input = stream;
+    let input: Readable;
+    try {
+      input = await openLineInput(args.source, io);
+    } catch (error) {
+      await writeText(io.stderr, `ripplewright diagnose: cannot read ${args.source}: ${describeReadError(error)}\n`);
+      return EXIT_FAILED;
     }
     const summary = await jsonLinesBatch(input, io.stdout, diagnoseValue, 'diagnosis input', (d) => (d.problems.length > 0 ? `${d.problems.length} reading(s) not understood` : null), io.stderr, 'ripplewright diagnose');
     if (summary.failed > 0) {

@@ -1,4 +1,3 @@
-import { createReadStream } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import type { Readable, Writable } from 'node:stream';
 import { expectReadings } from '../engine';
@@ -13,7 +12,7 @@ import {
   type CliIo,
   type Command,
 } from './command';
-import { describeFailure, describeReadError, jsonLinesBatch, type BatchSummary } from './json-lines';
+import { describeFailure, describeReadError, jsonLinesBatch, openLineInput, type BatchSummary } from './json-lines';
 
 export type { BatchErrorLine, BatchSummary } from './json-lines';
 
@@ -151,16 +150,6 @@ export async function expectSingle(args: ExpectArgs, io: CliIo, expect: ExpectRe
   return EXIT_OK;
 }
 
-async function openBatchInput(source: string, io: CliIo): Promise<Readable> {
-  if (source === '-') return io.stdin;
-  const stream = createReadStream(source);
-  // Surface open errors (missing file) before the loop starts, as the single mode does.
-  await new Promise<void>((resolve, reject) => {
-    stream.once('open', () => resolve());
-    stream.once('error', reject);
-  });
-  return stream;
-}
 
 export const expectCommand: Command = {
   name: 'expect',
@@ -175,7 +164,7 @@ export const expectCommand: Command = {
     if (!args.batch) return expectSingle(args, io, expectReadings);
     let input: Readable;
     try {
-      input = await openBatchInput(args.source, io);
+      input = await openLineInput(args.source, io);
     } catch (error) {
       await writeText(io.stderr, `ripplewright expect: cannot read ${args.source}: ${describeReadError(error)}\n`);
       return EXIT_FAILED;

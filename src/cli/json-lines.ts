@@ -1,7 +1,8 @@
+import { createReadStream } from 'node:fs';
 import type { Readable, Writable } from 'node:stream';
 import { createInterface } from 'node:readline';
 import { SpecError } from '../engine';
-import { writeText } from './command';
+import { writeText, type CliIo } from './command';
 
 /** What a failed batch line prints in place of a result. */
 export interface BatchErrorLine {
@@ -76,4 +77,19 @@ export async function jsonLinesBatch<T>(
     await writeText(output, `${JSON.stringify(out)}\n`);
   }
   return { lines: lineNumber, failed };
+}
+
+/**
+ * The input of a line mode: stdin for "-", else the file, opened before the loop starts so a
+ * missing file is reported as the single mode reports it.
+ * @throws the open error (ENOENT, EACCES, …)
+ */
+export async function openLineInput(source: string, io: CliIo): Promise<Readable> {
+  if (source === '-') return io.stdin;
+  const stream = createReadStream(source);
+  await new Promise<void>((resolve, reject) => {
+    stream.once('open', () => resolve());
+    stream.once('error', reject);
+  });
+  return stream;
 }

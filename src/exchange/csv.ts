@@ -10,23 +10,12 @@
  * apostrophe from a text cell that has one). The numeric columns (value, expected_low,
  * expected_high) are left as the numbers they are, minus signs included (DOMAIN.md §9).
  */
-import type { ReadingKind } from '../engine/diagnosis/types';
+import { READING_UNITS } from '../engine/diagnosis/types';
 import type { Asset, Reading, Technician } from '../model/job';
 import type { JobPayload } from './format';
 
-/** The unit each reading kind is stored in (SI, as in src/engine/diagnosis/types.ts). */
-export const READING_UNITS: Record<ReadingKind, 'V' | 'Hz' | 'F' | 'Ω'> = {
-  mainsAc: 'V',
-  acSecondary: 'V',
-  dcOut: 'V',
-  rippleAc: 'V',
-  rippleHz: 'Hz',
-  regulatorOut: 'V',
-  diodeForward: 'V',
-  diodeReverse: 'V',
-  capacitance: 'F',
-  esr: 'Ω',
-};
+/** The unit each reading kind is stored in (SI): the diagnosis contract's table. */
+export { READING_UNITS };
 
 /** A column: its header, whether it holds numbers, and how a row fills it. */
 interface Column {

@@ -17,7 +17,7 @@ import type { DiodeCondition } from '../types';
 import { accuracyHalfWidth, type ResolvedMeter } from './meter';
 import type { SimulatedVariant, SupplyModel } from './model';
 import type { Reading } from './readings';
-import type { LiveReadingKind, MeterValue, ReadingKind } from './types';
+import { AC_READING_KINDS, type LiveReadingKind, type MeterValue, type ReadingKind } from './types';
 
 export const MODEL_RELATIVE = 0.01;
 export const MODEL_ABSOLUTE_VOLTS = 0.005;
@@ -35,11 +35,10 @@ export function logSumExp(xs: ArrayLike<number>): number {
   return max + Math.log(s);
 }
 
-const AC_KINDS = new Set<ReadingKind>(['mainsAc', 'acSecondary', 'rippleAc']);
 
 /** Standard deviation of a live reading's meter and model error around a value. */
 export function liveSigma(kind: LiveReadingKind, mu: number, meter: ResolvedMeter): number {
-  const acc = accuracyHalfWidth(mu, AC_KINDS.has(kind) ? meter.ac : meter.dc, meter.displayCounts);
+  const acc = accuracyHalfWidth(mu, AC_READING_KINDS.has(kind) ? meter.ac : meter.dc, meter.displayCounts);
   const model = MODEL_RELATIVE * Math.abs(mu) + MODEL_ABSOLUTE_VOLTS;
   return Math.sqrt((acc / 2) ** 2 + model * model);
 }

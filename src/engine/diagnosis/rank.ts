@@ -24,21 +24,10 @@ import type { SimulatedVariant, SupplyModel } from './model';
 import { readingGuide } from './points';
 import type { Reading } from './readings';
 import { quantileSorted } from './sampling';
-import type { Diagnosis, FaultId, LiveReadingKind, MeterValue, NextReading, RankedFault, ReadingBand, ReadingKind, ReadingVerdict } from './types';
+import { AC_READING_KINDS, READING_UNITS, type Diagnosis, type FaultId, type LiveReadingKind, type MeterValue, type NextReading, type RankedFault, type ReadingBand, type ReadingKind, type ReadingVerdict } from './types';
 
-const AC_KINDS = new Set<ReadingKind>(['mainsAc', 'acSecondary', 'rippleAc']);
-const UNITS: Record<ReadingKind, ReadingBand['unit']> = {
-  mainsAc: 'V',
-  acSecondary: 'V',
-  dcOut: 'V',
-  rippleAc: 'V',
-  rippleHz: 'Hz',
-  regulatorOut: 'V',
-  diodeForward: 'V',
-  diodeReverse: 'V',
-  capacitance: 'F',
-  esr: 'Ω',
-};
+const AC_KINDS = AC_READING_KINDS;
+const UNITS = READING_UNITS;
 
 /**
  * Expected bands of a healthy unit on this meter: the 2.5–97.5 % quantiles of the tolerance

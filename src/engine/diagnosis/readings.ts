@@ -3,7 +3,7 @@
  */
 import type { DiodeLabel } from '../types';
 import { parseMeterText, type MeterUnit } from './meter-text';
-import type { LiveReadingKind, MeterValue, ReadingKind, ReadingsInput } from './types';
+import { LIVE_READING_KINDS, READING_UNITS, type MeterValue, type ReadingKind, type ReadingsInput } from './types';
 
 export interface Reading {
   kind: ReadingKind;
@@ -13,14 +13,6 @@ export interface Reading {
   field: string;
 }
 
-const LIVE_UNITS: Record<LiveReadingKind, MeterUnit> = {
-  mainsAc: 'V',
-  acSecondary: 'V',
-  dcOut: 'V',
-  rippleAc: 'V',
-  rippleHz: 'Hz',
-  regulatorOut: 'V',
-};
 
 function read(
   raw: number | string | undefined,
@@ -64,8 +56,8 @@ export function collectReadings(input: ReadingsInput, diodes: readonly DiodeLabe
   for (const key of Object.keys(input)) {
     if (!known.has(key)) problems.push({ field: key, message: 'not a reading this tool knows' });
   }
-  for (const kind of Object.keys(LIVE_UNITS) as LiveReadingKind[]) {
-    const v = read(input[kind], LIVE_UNITS[kind], kind, problems);
+  for (const kind of LIVE_READING_KINDS) {
+    const v = read(input[kind], READING_UNITS[kind], kind, problems);
     if (v === null) continue;
     if (v === 'OL') {
       problems.push({ field: kind, message: 'OL (overload) here means the meter is on too low a range: pick a higher range or auto' });

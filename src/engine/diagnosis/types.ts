@@ -22,6 +22,23 @@ export const LIVE_READING_KINDS: readonly LiveReadingKind[] = [
 ];
 export const POWER_OFF_READING_KINDS: readonly PowerOffReadingKind[] = ['diodeForward', 'diodeReverse', 'capacitance', 'esr'];
 
+/** The SI unit each reading kind is given and stored in. */
+export const READING_UNITS: Readonly<Record<ReadingKind, 'V' | 'Hz' | 'F' | 'Ω'>> = {
+  mainsAc: 'V',
+  acSecondary: 'V',
+  dcOut: 'V',
+  rippleAc: 'V',
+  rippleHz: 'Hz',
+  regulatorOut: 'V',
+  diodeForward: 'V',
+  diodeReverse: 'V',
+  capacitance: 'F',
+  esr: 'Ω',
+};
+
+/** Readings taken in the meter's AC mode (its AC accuracy applies). */
+export const AC_READING_KINDS: ReadonlySet<ReadingKind> = new Set<ReadingKind>(['mainsAc', 'acSecondary', 'rippleAc']);
+
 /** A meter value: a number in SI units, or the meter's overload "OL". */
 export type MeterValue = number | 'OL';
 
