@@ -332,6 +332,7 @@ function nextReading(
     .slice(0, 40);
   let best: { c: { kind: ReadingKind; target?: string }; gain: number; score: number } | null = null;
   const gains: { c: { kind: ReadingKind; target?: string }; gain: number }[] = [];
+  const poweredOffBefore = readings.some((r) => r.kind === 'diodeForward' || r.kind === 'diodeReverse' || r.kind === 'capacitance' || r.kind === 'esr');
   for (const c of candidates(model, readings)) {
     const preds = live.map((i) => predictiveFor(model, spread, gaussians[i]!, variants[i]!, c, observed));
     let expectedH = 0;
@@ -353,9 +354,10 @@ function nextReading(
     });
     const gain = Math.max(0, h0 - (total > 0 ? expectedH / total : h0));
     const guide = readingGuide(model.spec.topology, c.kind, c.target, model.meter.kind);
-    // Prefer live readings when the gain is close: power-off tests need a discharge first, and
-    // a mains reading exposes the technician (our weighting).
-    const score = gain * (guide.powerOff ? 0.8 : c.kind === 'mainsAc' ? 0.9 : 1);
+    // Prefer live readings: the first power-off test means switching off, discharging and
+    // verifying (the field order, DOMAIN.md §7–8), after which the others cost little; and a
+    // mains reading exposes the technician (our weighting).
+    const score = gain * (guide.powerOff ? (poweredOffBefore ? 0.9 : 0.35) : c.kind === 'mainsAc' ? 0.9 : 1);
     gains.push({ c, gain });
     if (!best || score > best.score) best = { c, gain, score };
   }
@@ -372,6 +374,14 @@ function nextReading(
     const scored = gains.find((g) => g.c.kind === confirm.kind && g.c.target === confirm.target);
     guide.gainBits = scored?.gain ?? 0;
     return guide;
+  }
+  // Live readings first while one still tells something (0.1 bit or more): the first power-off
+  // test means switching off, discharging and verifying, then powering up again for any live
+  // reading after it (the field order, DOMAIN.md §7–8; our rule).
+  if (!poweredOffBefore) {
+    const live = gains.filter((g) => !readingGuide(model.spec.topology, g.c.kind, g.c.target, model.meter.kind).powerOff);
+    const bestLive = live.reduce<(typeof gains)[number] | null>((b, g) => (b === null || g.gain * (g.c.kind === 'mainsAc' ? 0.9 : 1) > b.gain * (b.c.kind === 'mainsAc' ? 0.9 : 1) ? g : b), null);
+    if (bestLive !== null && bestLive.gain >= 0.1) best = { ...bestLive, score: bestLive.gain };
   }
   if (!best || best.gain < 0.01) return null;
   const guide = readingGuide(model.spec.topology, best.c.kind, best.c.target, model.meter.kind);
