@@ -13,12 +13,15 @@ import { UpdatePrompt } from './components/UpdatePrompt';
 import { parseRoute, type Route } from './router';
 import { Saver } from './saver';
 import { JobsScreen } from './screens/Jobs/JobsScreen';
+import type { ReviewScreenProps } from './screens/Review/ReviewScreen';
 import { applyTheme } from './theme';
 
 // Screens not needed at start load on first use, each its own chunk.
 const loadNewJob = () => import('./screens/NewJob/NewJobScreen').then((m) => m.NewJobScreen);
 const loadJob = () => import('./screens/Job/JobScreen').then((m) => m.JobScreen);
 const loadSettings = () => import('./screens/Settings/SettingsScreen').then((m) => m.SettingsScreen);
+const loadFiles = () => import('./screens/Files/FilesScreen').then((m) => m.FilesScreen);
+const loadReview = () => import('./screens/Review/ReviewScreen').then((m) => m.ReviewScreen);
 
 export interface AppProps {
   /** Opens the database (tests pass one on fake-indexeddb). Must be a stable function: the store opens once per function. */
@@ -134,6 +137,8 @@ export function App({ open = openAppStore, engine = sharedEngine(), startService
       <nav class="app-nav" aria-label="Main">
         <a href="#/jobs" aria-current={route.screen === 'jobs' ? 'page' : undefined}>Jobs</a>
         <a href="#/new" aria-current={route.screen === 'new' ? 'page' : undefined}>New job</a>
+        <a href="#/review" aria-current={route.screen === 'review' ? 'page' : undefined}>Review</a>
+        <a href="#/files" aria-current={route.screen === 'files' ? 'page' : undefined}>Files</a>
         <a href="#/settings" aria-current={route.screen === 'settings' ? 'page' : undefined}>Settings</a>
       </nav>
     </div>
@@ -148,6 +153,10 @@ function Screen({ route }: { route: Route }) {
       return <Lazy key="new" load={loadNewJob} props={{}} what="new-job screen" />;
     case 'settings':
       return <Lazy key="settings" load={loadSettings} props={{}} what="settings" />;
+    case 'files':
+      return <Lazy key="files" load={loadFiles} props={route.jobId === undefined ? {} : { jobId: route.jobId }} what="job files screen" />;
+    case 'review':
+      return <Lazy<ReviewScreenProps> key="review" load={loadReview} props={{}} what="shop review" />;
     case 'job':
       return <Lazy key="job" load={loadJob} props={{ jobId: route.jobId, tab: route.tab }} what="job" />;
   }

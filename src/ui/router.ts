@@ -1,6 +1,7 @@
 /**
  * Screens by the address after "#", so every screen works offline from the one cached page and
- * the back button behaves: #/jobs, #/new, #/settings, #/job/<id>/<tab>.
+ * the back button behaves: #/jobs, #/new, #/settings, #/job/<id>/<tab>, #/files (export and
+ * import; #/files/<jobId> offers that one job), #/review (the shop review).
  */
 
 export type JobTab = 'supply' | 'test' | 'waveform' | 'finish' | 'summary';
@@ -10,6 +11,8 @@ export type Route =
   | { screen: 'jobs' }
   | { screen: 'new' }
   | { screen: 'settings' }
+  | { screen: 'files'; jobId?: string }
+  | { screen: 'review' }
   | { screen: 'job'; jobId: string; tab: JobTab };
 
 /** The route for a location hash; anything not understood is the jobs list. */
@@ -18,6 +21,8 @@ export function parseRoute(hash: string): Route {
   const [first, second, third] = parts;
   if (first === 'new') return { screen: 'new' };
   if (first === 'settings') return { screen: 'settings' };
+  if (first === 'files') return second === undefined ? { screen: 'files' } : { screen: 'files', jobId: second };
+  if (first === 'review') return { screen: 'review' };
   if (first === 'job' && second !== undefined) {
     const tab = (JOB_TABS as readonly string[]).includes(third ?? '') ? (third as JobTab) : 'test';
     return { screen: 'job', jobId: second, tab };
@@ -34,6 +39,10 @@ export function routeHash(route: Route): string {
       return '#/new';
     case 'settings':
       return '#/settings';
+    case 'files':
+      return route.jobId === undefined ? '#/files' : `#/files/${encodeURIComponent(route.jobId)}`;
+    case 'review':
+      return '#/review';
     case 'job':
       return `#/job/${encodeURIComponent(route.jobId)}/${route.tab}`;
   }

@@ -89,7 +89,7 @@ describe('the order of the guided test', () => {
 
 describe('routes', () => {
   it('reads back every route it writes, and sends anything else to the jobs', () => {
-    const routes: Route[] = [{ screen: 'jobs' }, { screen: 'new' }, { screen: 'settings' }, { screen: 'job', jobId: 'a b/c', tab: 'finish' }];
+    const routes: Route[] = [{ screen: 'jobs' }, { screen: 'new' }, { screen: 'settings' }, { screen: 'review' }, { screen: 'files' }, { screen: 'files', jobId: 'x/y' }, { screen: 'job', jobId: 'a b/c', tab: 'finish' }];
     for (const route of routes) expect(parseRoute(routeHash(route))).toEqual(route);
     expect(parseRoute('#/nowhere')).toEqual({ screen: 'jobs' });
     expect(parseRoute('')).toEqual({ screen: 'jobs' });

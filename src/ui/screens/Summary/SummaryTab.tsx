@@ -1,7 +1,8 @@
-import { FAULTS } from '../../../engine/diagnosis';
+import { DISCHARGE_CAUTION, FAULTS, MAINS_CAUTION } from '../../../engine/diagnosis';
 import type { FaultId } from '../../../engine/diagnosis/types';
 import type { Reading } from '../../../model/job';
 import { useApp } from '../../app-context';
+import { Caution } from '../../components/Caution';
 import { VerdictBadge } from '../../components/VerdictBadge';
 import { formatMeterValue, formatWhen } from '../../format';
 import { latestBySlot, readingName, UNITS } from '../../readings';
@@ -10,7 +11,11 @@ import type { TabProps } from '../Job/JobScreen';
 
 const OUTCOME_WORDS = { fixed: 'Fixed', 'not-fixed': 'Not fixed', referred: 'Referred', 'no-fault-found': 'No fault found' } as const;
 
-/** The job on one screen: who, what, the readings before and after, the fault and the repair. */
+/**
+ * The job on one screen: who, what, the readings before and after with their bands and
+ * verdicts, the fault and the repair, and the safety cautions. It is also the printed job
+ * report (styles.css "@media print" leaves only this), via the browser's Print or Print → PDF.
+ */
 export function SummaryTab({ data, diagnosis }: TabProps) {
   const { technicians, settings } = useApp();
   const { job, asset } = data;
@@ -23,6 +28,15 @@ export function SummaryTab({ data, diagnosis }: TabProps) {
   const earlierJobs = [...data.historyJobs.values()];
   return (
     <div class="tab summary-tab">
+      <div class="button-row no-print">
+        <button type="button" class="secondary" onClick={() => print()}>
+          Print the report
+        </button>
+        <a class="button secondary" href={routeHash({ screen: 'files', jobId: job.id })}>
+          Send this job
+        </a>
+      </div>
+      <p class="print-only">Ripplewright job report, printed {new Date().toLocaleString('en-GB')}. Job {job.id}.</p>
       <dl class="summary">
         <dt>Status</dt>
         <dd>{job.status === 'finished' ? `Finished ${job.finishedAt ? formatWhen(job.finishedAt) : ''}${finish?.outcome ? ` — ${OUTCOME_WORDS[finish.outcome]}` : ''}` : 'Open'}</dd>
@@ -85,6 +99,11 @@ export function SummaryTab({ data, diagnosis }: TabProps) {
           </ul>
         </section>
       )}
+      <section aria-labelledby="summary-safety">
+        <h2 id="summary-safety">Safety</h2>
+        <Caution title="Live readings">{MAINS_CAUTION}</Caution>
+        <Caution title="Power-off tests">{DISCHARGE_CAUTION}</Caution>
+      </section>
       {job.status === 'open' ? (
         <a class="button primary" href={routeHash({ screen: 'job', jobId: job.id, tab: 'finish' })}>
           Finish the job
@@ -103,6 +122,7 @@ function ReadingTable({ caption, readings, decimal }: { caption: string; reading
         <tr>
           <th scope="col">Reading</th>
           <th scope="col">Value</th>
+          <th scope="col">Expected</th>
           <th scope="col">Verdict</th>
         </tr>
       </thead>
@@ -111,6 +131,11 @@ function ReadingTable({ caption, readings, decimal }: { caption: string; reading
           <tr key={reading.id}>
             <th scope="row">{readingName(reading.kind, reading.target)}</th>
             <td>{formatMeterValue(reading.value, UNITS[reading.kind], decimal)}</td>
+            <td>
+              {reading.expectedLow !== undefined && reading.expectedHigh !== undefined
+                ? `${formatMeterValue(reading.expectedLow, UNITS[reading.kind], decimal)} – ${formatMeterValue(reading.expectedHigh, UNITS[reading.kind], decimal)}`
+                : '—'}
+            </td>
             <td>{reading.verdict ? <VerdictBadge verdict={reading.verdict} /> : '—'}</td>
           </tr>
         ))}

@@ -1,0 +1,199 @@
+import { useEffect, useState } from 'preact/hooks';
+import { buildJobFile, selectForExport, type ExportSelection } from '../../../exchange/write';
+import { csvRecords } from '../../../exchange/csv';
+import { importJobFiles, type FileImportReport } from '../../../exchange/import';
+import type { Job } from '../../../model/job';
+import { idbImportStore, loadExchangePayload } from '../../../store/exchange';
+import { nowIso } from '../../../store/ids';
+import { getJob } from '../../../store/jobs';
+import { useApp } from '../../app-context';
+import { ScreenTitle } from '../../components/ScreenTitle';
+import { shareOrDownload, type OutgoingFile } from '../../share';
+import { ImportReport } from './ImportReport';
+
+type Scope = 'all' | 'dates' | 'job';
+
+/** Sending jobs to another device or the office, and taking in files from them. */
+export function FilesScreen({ jobId }: { jobId?: string }) {
+  return (
+    <section class="screen files-screen" aria-labelledby="files-title">
+      <ScreenTitle id="files-title">Job files</ScreenTitle>
+      <ExportPanel jobId={jobId} />
+      <ImportPanel />
+    </section>
+  );
+}
+
+/** Local calendar day "2026-03-02" → the ISO time that day starts; `nextDay` gives the day after. */
+function dayStart(day: string, nextDay = false): string {
+  const [y, m, d] = day.split('-').map(Number) as [number, number, number];
+  return new Date(y, m - 1, d + (nextDay ? 1 : 0)).toISOString();
+}
+
+function slug(text: string): string {
+  return text.normalize('NFD').replace(/\p{M}/gu, '').toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40);
+}
+
+function ExportPanel({ jobId }: { jobId: string | undefined }) {
+  const { db, settings, technicians } = useApp();
+  const [job, setJob] = useState<Job | undefined>(undefined);
+  const [scope, setScope] = useState<Scope>(jobId === undefined ? 'all' : 'job');
+  const [from, setFrom] = useState('');
+  const [to, setTo] = useState('');
+  const [json, setJson] = useState(true);
+  const [csv, setCsv] = useState(false);
+  const [state, setState] = useState<{ kind: 'idle' } | { kind: 'working' } | { kind: 'done'; text: string } | { kind: 'failed'; text: string }>({ kind: 'idle' });
+
+  useEffect(() => {
+    if (jobId === undefined) return;
+    void getJob(db, jobId).then(setJob);
+  }, [db, jobId]);
+
+  const run = async () => {
+    setState({ kind: 'working' });
+    try {
+      const selection: ExportSelection =
+        scope === 'job' && jobId !== undefined
+          ? { kind: 'jobs', jobIds: [jobId] }
+          : scope === 'dates'
+            ? { kind: 'dates', ...(from ? { from: dayStart(from) } : {}), ...(to ? { to: dayStart(to, true) } : {}) }
+            : { kind: 'all' };
+      const payload = selectForExport(await loadExchangePayload(db), selection);
+      if (payload.jobs.length === 0) {
+        setState({ kind: 'failed', text: 'No jobs to send: nothing was made in those dates.' });
+        return;
+      }
+      const at = nowIso();
+      const stem =
+        scope === 'job' && job !== undefined
+          ? `ripplewright-job-${slug(job.customer) || 'job'}-${at.slice(0, 10)}`
+          : scope === 'dates'
+            ? `ripplewright-jobs-${from || 'start'}-to-${to || 'now'}`
+            : `ripplewright-jobs-${at.slice(0, 10)}`;
+      const me = technicians.find((t) => t.id === settings.technicianId);
+      const files: OutgoingFile[] = [];
+      let digest = '';
+      if (json) {
+        const built = await buildJobFile(payload, {
+          exportedAt: at,
+          exportedBy: { ...(me ? { technicianId: me.id, name: me.name } : {}), device: 'Ripplewright app' },
+        });
+        digest = built.file.sha256;
+        files.push({ name: `${stem}.json`, type: 'application/json', parts: [built.text] });
+      }
+      if (csv) files.push({ name: `${stem}.csv`, type: 'text/csv', parts: [...csvRecords(payload)] });
+      const outcome = await shareOrDownload(files, 'Ripplewright jobs');
+      const what = `${payload.jobs.length} job${payload.jobs.length === 1 ? '' : 's'}, ${payload.readings.length} reading${payload.readings.length === 1 ? '' : 's'}`;
+      const names = files.map((file) => file.name).join(' and ');
+      setState({
+        kind: 'done',
+        text:
+          outcome === 'cancelled'
+            ? 'Not sent: the share was closed.'
+            : `${outcome === 'shared' ? 'Shared' : 'Downloaded'} ${names} (${what}).${digest ? ` Check code (SHA-256): ${digest.slice(0, 16)}…` : ''}`,
+      });
+    } catch (error) {
+      setState({ kind: 'failed', text: `The export did not work: ${error instanceof Error ? error.message : String(error)}` });
+    }
+  };
+
+  return (
+    <section aria-labelledby="export-title" class="panel">
+      <h2 id="export-title">Send jobs</h2>
+      <fieldset>
+        <legend>Which jobs</legend>
+        {jobId !== undefined ? (
+          <label class="check">
+            <input type="radio" name="export-scope" checked={scope === 'job'} onChange={() => setScope('job')} />
+            This job{job ? ` (${job.customer || 'no customer'})` : ''}
+          </label>
+        ) : null}
+        <label class="check">
+          <input type="radio" name="export-scope" checked={scope === 'all'} onChange={() => setScope('all')} />
+          Every job on this device
+        </label>
+        <label class="check">
+          <input type="radio" name="export-scope" checked={scope === 'dates'} onChange={() => setScope('dates')} />
+          Jobs made between two dates
+        </label>
+        {scope === 'dates' ? (
+          <div class="pair">
+            <div class="field">
+              <label for="export-from">From (first day)</label>
+              <input id="export-from" type="date" value={from} onInput={(event) => setFrom(event.currentTarget.value)} />
+            </div>
+            <div class="field">
+              <label for="export-to">To (last day)</label>
+              <input id="export-to" type="date" value={to} onInput={(event) => setTo(event.currentTarget.value)} />
+            </div>
+          </div>
+        ) : null}
+      </fieldset>
+      <fieldset>
+        <legend>As</legend>
+        <label class="check">
+          <input type="checkbox" checked={json} onChange={(event) => setJson(event.currentTarget.checked)} />
+          Job file (JSON, for another device or the office)
+        </label>
+        <label class="check">
+          <input type="checkbox" checked={csv} onChange={(event) => setCsv(event.currentTarget.checked)} />
+          Spreadsheet of the readings (CSV)
+        </label>
+      </fieldset>
+      <button type="button" class="primary" disabled={state.kind === 'working' || (!json && !csv)} onClick={() => void run()}>
+        {state.kind === 'working' ? 'Preparing…' : 'Send or save'}
+      </button>
+      <p role="status" class={state.kind === 'failed' ? 'problem' : 'hint'}>
+        {state.kind === 'done' || state.kind === 'failed' ? state.text : ''}
+      </p>
+    </section>
+  );
+}
+
+function ImportPanel() {
+  const { db, reloadTechnicians } = useApp();
+  const [progress, setProgress] = useState<{ done: number; total: number } | null>(null);
+  const [reports, setReports] = useState<FileImportReport[] | null>(null);
+
+  const take = async (list: FileList | null) => {
+    if (list === null || list.length === 0) return;
+    const chosen = [...list];
+    setReports(null);
+    setProgress({ done: 0, total: chosen.length });
+    const files = await Promise.all(chosen.map(async (file) => ({ name: file.name, content: new Uint8Array(await file.arrayBuffer()) })));
+    const done = await importJobFiles(files, idbImportStore(db), {
+      storeAt: nowIso(),
+      onFile: (_report, index, total) => setProgress({ done: index + 1, total }),
+    });
+    setProgress(null);
+    setReports(done);
+    await reloadTechnicians();
+  };
+
+  return (
+    <section aria-labelledby="import-title" class="panel">
+      <h2 id="import-title">Take in job files</h2>
+      <p class="hint">Choose one or more job files. A file with anything wrong is left out whole; the others still come in. Taking in the same file again changes nothing.</p>
+      <label class="button secondary file-pick">
+        Choose job files
+        <input
+          class="visually-hidden"
+          type="file"
+          multiple
+          accept=".json,application/json"
+          disabled={progress !== null}
+          onChange={(event) => {
+            const input = event.currentTarget;
+            void take(input.files).finally(() => (input.value = ''));
+          }}
+        />
+      </label>
+      {progress !== null ? (
+        <p role="status">
+          Taking in file {Math.min(progress.done + 1, progress.total)} of {progress.total}…
+        </p>
+      ) : null}
+      {reports !== null ? <ImportReport reports={reports} /> : null}
+    </section>
+  );
+}
