@@ -53,6 +53,13 @@ describe.skipIf(SKIP_REASON !== '')(`accessibility of the main screens${SKIP_REA
       await page.getByRole('heading', { name: 'Settings', level: 1 }).waitFor();
       await check(page, 'settings');
 
+      await page.locator('.app-nav').getByRole('link', { name: 'Files' }).click();
+      await page.getByRole('heading', { name: 'Job files', level: 1 }).waitFor();
+      await check(page, 'a11y-files');
+      await page.locator('.app-nav').getByRole('link', { name: 'Review' }).click();
+      await page.locator('.review-chart canvas').first().waitFor();
+      await check(page, 'a11y-review');
+
       // An open job from the demo, tab by tab.
       await page.locator('.app-nav').getByRole('link', { name: 'Jobs' }).click();
       await waitForJobs(page);
@@ -90,6 +97,10 @@ describe.skipIf(SKIP_REASON !== '')(`accessibility of the main screens${SKIP_REA
         await page.locator('.step-card .reading-entry').first().waitFor();
         await check(page, `test-step-${theme.startsWith('Dark') ? 'dark' : 'sunlight'}`);
       }
+      // The review's filters, table and charts in the last theme (sunlight).
+      await page.locator('.app-nav').getByRole('link', { name: 'Review' }).click();
+      await page.locator('.review-chart canvas').first().waitFor();
+      await check(page, 'a11y-review-sunlight');
     } finally {
       await app.close();
     }

@@ -177,7 +177,6 @@ function ImportPanel() {
       <label class="button secondary file-pick">
         Choose job files
         <input
-          class="visually-hidden"
           type="file"
           multiple
           accept=".json,application/json"

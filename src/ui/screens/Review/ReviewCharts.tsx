@@ -115,16 +115,14 @@ export function ReviewCharts({ answer, technicianName, assetId }: ChartsProps) {
           title="Fixed on the first visit"
           summary={`${judged === 0 ? 0 : Math.round((100 * fixed) / judged)} % of ${judged} jobs fixed or not fixed were fixed with no return within 30 days`}
           config={(c) => ({
-            type: 'line',
+            type: 'bar',
             data: {
               labels: answer.fixRate.map((month) => month.month),
               datasets: [
                 {
                   label: '% fixed first time',
                   data: answer.fixRate.map((month) => (month.jobs === 0 ? 0 : Math.round((1000 * month.firstVisitFixes) / month.jobs) / 10)),
-                  borderColor: c.series[0]!,
                   backgroundColor: c.series[0]!,
-                  borderWidth: 2.5,
                 },
               ],
             },

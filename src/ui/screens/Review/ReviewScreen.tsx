@@ -203,11 +203,9 @@ function JobTable({ answer, technicianName }: { answer: ReviewAnswer; technician
         <thead>
           <tr>
             <th scope="col">Date</th>
-            <th scope="col">Customer</th>
-            <th scope="col">Unit</th>
+            <th scope="col">Customer and unit</th>
             <th scope="col">Technician</th>
-            <th scope="col">Fault</th>
-            <th scope="col">Outcome</th>
+            <th scope="col">Fault and outcome</th>
             <th scope="col">Minutes</th>
           </tr>
         </thead>
@@ -219,11 +217,15 @@ function JobTable({ answer, technicianName }: { answer: ReviewAnswer; technician
                 <td>
                   <a href={href}>{formatWhen(row.date)}</a>
                 </td>
-                <td>{row.customer || '—'}</td>
-                <td>{row.asset || '—'}</td>
+                <td>
+                  <span class="review-customer">{row.customer || '—'}</span>
+                  {row.asset ? <span class="review-unit">{row.asset}</span> : null}
+                </td>
                 <td>{technicianName(row.technicianId)}</td>
-                <td>{row.fault ? faultWords(row.fault) : '—'}</td>
-                <td>{row.outcome ? (OUTCOME_WORDS[row.outcome] ?? row.outcome) : 'Open'}</td>
+                <td>
+                  {row.fault ? faultWords(row.fault) : 'No fault recorded'}
+                  <span class="review-unit">{row.outcome ? (OUTCOME_WORDS[row.outcome] ?? row.outcome) : 'Open'}</span>
+                </td>
                 <td class="number">{row.minutes ?? '—'}</td>
               </tr>
             );

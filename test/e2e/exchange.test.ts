@@ -1,0 +1,93 @@
+import AxeBuilder from '@axe-core/playwright';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import { launchApp, loadDemo, screenshot, SKIP_REASON, waitForJobs, waitForSaved } from './browser';
+
+const TAGS = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa', 'best-practice'];
+
+async function axeViolations(page: Page): Promise<string[]> {
+  const result = await new AxeBuilder({ page }).withTags(TAGS).analyze();
+  expect(result.passes.length).toBeGreaterThan(10);
+  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(', ')})`);
+}
+
+/** Pixels drawn on each chart canvas (alpha above zero): a chart that drew nothing counts 0. */
+function drawnPixels(page: Page): Promise<number[]> {
+  return page.evaluate(() =>
+    [...document.querySelectorAll<HTMLCanvasElement>('.review-chart canvas')].map((canvas) => {
+      const context = canvas.getContext('2d');
+      if (context === null || canvas.width === 0 || canvas.height === 0) return 0;
+      const { data } = context.getImageData(0, 0, canvas.width, canvas.height);
+      let drawn = 0;
+      for (let i = 3; i < data.length; i += 4) if (data[i]! > 0) drawn += 1;
+      return drawn;
+    }),
+  );
+}
+
+describe.skipIf(SKIP_REASON !== '')(`job files between two devices${SKIP_REASON ? ` (skipped: ${SKIP_REASON})` : ''}`, () => {
+  it('exports the demo shop from one profile, imports it into another, and reviews it with charts', async () => {
+    const scratch = mkdtempSync(join(tmpdir(), 'ripplewright-files-'));
+    const sender = await launchApp();
+    let exported: string;
+    let jobCount: number;
+    try {
+      const { page } = sender;
+      await waitForJobs(page);
+      await loadDemo(page);
+      jobCount = await page.locator('.job-card').count();
+      await page.locator('.app-nav').getByRole('link', { name: 'Files' }).click();
+      await page.getByRole('heading', { name: 'Job files', level: 1 }).waitFor();
+      // Linux Chromium cannot share files, so the export is a download.
+      const download = page.waitForEvent('download');
+      await page.getByRole('button', { name: 'Send or save' }).click();
+      exported = join(scratch, (await download).suggestedFilename());
+      await (await download).saveAs(exported);
+      await page.getByText(/^Downloaded ripplewright-jobs-.*\.json/).waitFor();
+    } finally {
+      await sender.close();
+    }
+    expect(exported).toMatch(/ripplewright-jobs-\d{4}-\d\d-\d\d\.json$/);
+    const broken = join(scratch, 'damaged.json');
+    writeFileSync(broken, '{"format":"ripplewright-jobs","schemaVersion":1}');
+
+    const receiver = await launchApp();
+    try {
+      const { page } = receiver;
+      await waitForJobs(page);
+      await page.locator('.app-nav').getByRole('link', { name: 'Files' }).click();
+      await page.getByLabel('Choose job files').setInputFiles([broken, exported]);
+      await page.getByRole('heading', { name: '1 file taken in, 1 file left out' }).waitFor();
+      await expect(page.locator('.report-refused').textContent()).resolves.toMatch(/damaged\.json: .*payload/);
+      await expect(page.locator('.report-ok').textContent()).resolves.toMatch(new RegExp(`${jobCount} new jobs`));
+      await waitForSaved(page);
+      await screenshot(page, 'import-report');
+      expect(await axeViolations(page), 'axe on the import report').toEqual([]);
+
+      // The same file again changes nothing.
+      await page.getByLabel('Choose job files').setInputFiles([exported]);
+      await page.getByText('Nothing new: everything in it was already here.').waitFor();
+
+      await page.locator('.app-nav').getByRole('link', { name: 'Review' }).click();
+      await page.getByText(`${jobCount} of ${jobCount} jobs`).waitFor();
+      await page.locator('.review-chart canvas').first().waitFor();
+      await page.waitForFunction(() => document.querySelectorAll('.review-chart canvas').length >= 3);
+      const pixels = await drawnPixels(page);
+      expect(pixels.length).toBeGreaterThanOrEqual(3);
+      for (const drawn of pixels) expect(drawn).toBeGreaterThan(100);
+      await screenshot(page, 'review');
+      expect(await axeViolations(page), 'axe on the review').toEqual([]);
+
+      // A row leads to its job.
+      await page.locator('.review-table tbody tr').first().getByRole('link').click();
+      await page.getByRole('heading', { name: /^Summary/, level: 1 }).waitFor();
+      expect(new URL(page.url()).hash).toMatch(/^#\/job\/.+\/summary$/);
+    } finally {
+      await receiver.close();
+      rmSync(scratch, { recursive: true, force: true });
+    }
+  });
+});
