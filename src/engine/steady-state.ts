@@ -599,7 +599,7 @@ export function solveSteadyState(c: Circuit, opts: SteadyStateOptions): SteadySt
     // Backtracking line search on the residual: halve the step until it improves.
     let accepted: PeriodRun | null = null;
     let lambda = 1;
-    for (let tries = 0; tries < 4 && iterations < maxIterations; tries++) {
+    for (let tries = 0; tries < 10 && iterations < maxIterations; tries++) {
       const trial = run.start.slice();
       for (let i = 0; i < n2; i++) trial[i] = trial[i]! + lambda * delta[i]!;
       const r = runPeriod(trial, run.nodeVolts);
