@@ -20,7 +20,11 @@ export { estimateSupply } from './estimates';
  * - a filtered one is first solved on a coarse uniform grid of COARSE_STEPS, then on a grid
  *   that keeps the coarse steps where every diode is off (the capacitor discharges smoothly
  *   into the load) and splits the steps where a diode conducts so that the narrowest
- *   conduction pulse gets at least POINTS_PER_PULSE points.
+ *   conduction pulse gets at least POINTS_PER_PULSE points;
+ * - where that solution still shows a diode current jumping by more than EDGE_FRACTION of its
+ *   peak in one step, or a pulse under MIN_PULSE_STEPS steps, those steps are split again
+ *   (finerSteps), at most twice;
+ * - neighbouring steps never differ by more than MAX_STEP_RATIO (BDF2's zero-stability).
  */
 const UNFILTERED_STEPS = 256;
 const COARSE_STEPS = 64;
