@@ -82,9 +82,17 @@ describe.skipIf(SKIP_REASON !== '')(`job files between two devices${SKIP_REASON 
       expect(await axeViolations(page), 'axe on the review').toEqual([]);
 
       // A row leads to its job.
-      await page.locator('.review-table tbody tr').first().getByRole('link').click();
+      await page.locator('.review-table tbody tr', { hasText: 'Fixed' }).first().getByRole('link').click();
       await page.getByRole('heading', { name: /^Summary/, level: 1 }).waitFor();
       expect(new URL(page.url()).hash).toMatch(/^#\/job\/.+\/summary$/);
+
+      // Printed, the report is the job alone: no bars, tabs or buttons, the cautions kept.
+      await page.emulateMedia({ media: 'print' });
+      expect(await page.locator('.app-nav').isVisible()).toBe(false);
+      expect(await page.getByRole('button', { name: 'Print the report' }).isVisible()).toBe(false);
+      expect(await page.getByRole('note', { name: 'Power-off tests' }).isVisible()).toBe(true);
+      await screenshot(page, 'job-report-print');
+      await page.emulateMedia({ media: 'screen' });
     } finally {
       await receiver.close();
       rmSync(scratch, { recursive: true, force: true });

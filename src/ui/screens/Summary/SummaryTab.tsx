@@ -1,11 +1,11 @@
 import { DISCHARGE_CAUTION, FAULTS, MAINS_CAUTION } from '../../../engine/diagnosis';
-import type { FaultId } from '../../../engine/diagnosis/types';
+import type { FaultId, ReadingBand } from '../../../engine/diagnosis/types';
 import type { Reading } from '../../../model/job';
 import { useApp } from '../../app-context';
 import { Caution } from '../../components/Caution';
 import { VerdictBadge } from '../../components/VerdictBadge';
-import { formatMeterValue, formatWhen } from '../../format';
-import { latestBySlot, readingName, UNITS } from '../../readings';
+import { formatBand, formatMeterValue, formatWhen } from '../../format';
+import { bandFor, latestBySlot, readingName, UNITS } from '../../readings';
 import { routeHash } from '../../router';
 import type { TabProps } from '../Job/JobScreen';
 
@@ -26,6 +26,7 @@ export function SummaryTab({ data, diagnosis }: TabProps) {
   const leading = diagnosis.answer?.diagnosis.ranked.slice(0, 3) ?? [];
   const decimal = settings.units.decimal;
   const earlierJobs = [...data.historyJobs.values()];
+  const bands = diagnosis.answer?.diagnosis.bands ?? [];
   return (
     <div class="tab summary-tab">
       <div class="button-row no-print">
@@ -69,8 +70,8 @@ export function SummaryTab({ data, diagnosis }: TabProps) {
           </>
         ) : null}
       </dl>
-      <ReadingTable caption="Readings before the repair" readings={before} decimal={decimal} />
-      <ReadingTable caption="Re-test after the repair" readings={after} decimal={decimal} />
+      <ReadingTable caption="Readings before the repair" readings={before} decimal={decimal} bands={bands} />
+      <ReadingTable caption="Re-test after the repair" readings={after} decimal={decimal} bands={bands} />
       {leading.length > 0 && before.length > 0 ? (
         <section aria-labelledby="summary-ranking">
           <h2 id="summary-ranking">What the readings pointed to</h2>
@@ -113,7 +114,23 @@ export function SummaryTab({ data, diagnosis }: TabProps) {
   );
 }
 
-function ReadingTable({ caption, readings, decimal }: { caption: string; readings: Reading[]; decimal: 'point' | 'comma' }) {
+/**
+ * The band a reading was judged against, as stored with it; a part that should read overload
+ * (a diode's reverse test) says so, as the diagnosis's band for it does.
+ */
+function expectedWords(reading: Reading, bands: readonly ReadingBand[], decimal: 'point' | 'comma'): string {
+  const band = bandFor(bands, reading.kind, reading.target);
+  if (band?.expectOverload) return formatBand(band, decimal);
+  // The diagnosis stores an overload band with both ends at the meter's diode-test volts (rank.ts),
+  // so equal ends mean "reads OL" even before the diagnosis has answered.
+  if (reading.expectedLow !== undefined && reading.expectedLow === reading.expectedHigh) return 'OL (overload)';
+  if (reading.expectedLow !== undefined && reading.expectedHigh !== undefined) {
+    return `${formatMeterValue(reading.expectedLow, UNITS[reading.kind], decimal)} – ${formatMeterValue(reading.expectedHigh, UNITS[reading.kind], decimal)}`;
+  }
+  return band === undefined ? '—' : formatBand(band, decimal);
+}
+
+function ReadingTable({ caption, readings, decimal, bands }: { caption: string; readings: Reading[]; decimal: 'point' | 'comma'; bands: readonly ReadingBand[] }) {
   if (readings.length === 0) return null;
   return (
     <table class="readings">
@@ -131,11 +148,7 @@ function ReadingTable({ caption, readings, decimal }: { caption: string; reading
           <tr key={reading.id}>
             <th scope="row">{readingName(reading.kind, reading.target)}</th>
             <td>{formatMeterValue(reading.value, UNITS[reading.kind], decimal)}</td>
-            <td>
-              {reading.expectedLow !== undefined && reading.expectedHigh !== undefined
-                ? `${formatMeterValue(reading.expectedLow, UNITS[reading.kind], decimal)} – ${formatMeterValue(reading.expectedHigh, UNITS[reading.kind], decimal)}`
-                : '—'}
-            </td>
+            <td>{expectedWords(reading, bands, decimal)}</td>
             <td>{reading.verdict ? <VerdictBadge verdict={reading.verdict} /> : '—'}</td>
           </tr>
         ))}
