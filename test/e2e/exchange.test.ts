@@ -81,6 +81,16 @@ describe.skipIf(SKIP_REASON !== '')(`job files between two devices${SKIP_REASON 
       await screenshot(page, 'review');
       expect(await axeViolations(page), 'axe on the review').toEqual([]);
 
+      // The dark theme: charts take the theme's colours and axe still finds nothing.
+      await page.locator('.app-nav').getByRole('link', { name: 'Settings' }).click();
+      await page.getByRole('radio', { name: 'Dark' }).check();
+      await waitForSaved(page);
+      await page.locator('.app-nav').getByRole('link', { name: 'Review' }).click();
+      await page.getByText(`${jobCount} of ${jobCount} jobs`).waitFor();
+      await page.waitForFunction(() => document.querySelectorAll('.review-chart canvas').length >= 3);
+      await screenshot(page, 'review-dark');
+      expect(await axeViolations(page), 'axe on the review, dark').toEqual([]);
+
       // A row leads to its job.
       await page.locator('.review-table tbody tr', { hasText: 'Fixed' }).first().getByRole('link').click();
       await page.getByRole('heading', { name: /^Summary/, level: 1 }).waitFor();

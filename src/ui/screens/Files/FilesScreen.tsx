@@ -155,19 +155,27 @@ function ImportPanel() {
   const [progress, setProgress] = useState<{ done: number; total: number } | null>(null);
   const [reports, setReports] = useState<FileImportReport[] | null>(null);
 
+  const [failure, setFailure] = useState<string | null>(null);
+
   const take = async (list: FileList | null) => {
     if (list === null || list.length === 0) return;
     const chosen = [...list];
     setReports(null);
+    setFailure(null);
     setProgress({ done: 0, total: chosen.length });
-    const files = await Promise.all(chosen.map(async (file) => ({ name: file.name, content: new Uint8Array(await file.arrayBuffer()) })));
-    const done = await importJobFiles(files, idbImportStore(db), {
-      storeAt: nowIso(),
-      onFile: (_report, index, total) => setProgress({ done: index + 1, total }),
-    });
-    setProgress(null);
-    setReports(done);
-    await reloadTechnicians();
+    try {
+      const files = await Promise.all(chosen.map(async (file) => ({ name: file.name, content: new Uint8Array(await file.arrayBuffer()) })));
+      const done = await importJobFiles(files, idbImportStore(db), {
+        storeAt: nowIso(),
+        onFile: (_report, index, total) => setProgress({ done: index + 1, total }),
+      });
+      setReports(done);
+      await reloadTechnicians();
+    } catch (error) {
+      setFailure(`The files could not be read: ${error instanceof Error ? error.message : String(error)}`);
+    } finally {
+      setProgress(null);
+    }
   };
 
   return (
@@ -192,6 +200,7 @@ function ImportPanel() {
           Taking in file {Math.min(progress.done + 1, progress.total)} of {progress.total}…
         </p>
       ) : null}
+      {failure !== null ? <p class="notice problem" role="alert">{failure}</p> : null}
       {reports !== null ? <ImportReport reports={reports} /> : null}
     </section>
   );

@@ -1,3 +1,4 @@
+import { useEffect, useRef } from 'preact/hooks';
 import { formatProblem } from '../../../exchange/parse';
 import type { FileImportReport } from '../../../exchange/import';
 import { formatWhen } from '../../format';
@@ -31,9 +32,12 @@ function cameIn(report: Taken): string {
 export function ImportReport({ reports }: { reports: readonly FileImportReport[] }) {
   const taken = reports.filter((report): report is Taken => report.ok);
   const refused = reports.length - taken.length;
+  const heading = useRef<HTMLHeadingElement>(null);
+  // Keyboard and screen-reader users land on the outcome, not back on the file button.
+  useEffect(() => heading.current?.focus(), [reports]);
   return (
     <section class="import-report" aria-labelledby="import-report-title">
-      <h3 id="import-report-title" tabIndex={-1}>
+      <h3 id="import-report-title" tabIndex={-1} ref={heading}>
         {plural(taken.length, 'file')} taken in{refused > 0 ? `, ${plural(refused, 'file')} left out` : ''}
       </h3>
       <ul class="report-list">

@@ -42,6 +42,10 @@ function themeColours() {
   };
 }
 
+function shorten(text: string, chars: number): string {
+  return text.length > chars ? `${text.slice(0, chars - 1)}…` : text;
+}
+
 type AnyConfig = ChartConfiguration<'bar' | 'line', number[], string>;
 
 /** One chart on a canvas, with its figures in words for screen readers. */
@@ -150,7 +154,11 @@ export function ReviewCharts({ answer, technicianName, assetId }: ChartsProps) {
           config={(c) => ({
             type: 'bar',
             data: { labels: answer.parts.map(([part]) => part), datasets: [{ label: 'times used', data: answer.parts.map(([, n]) => n), backgroundColor: c.series[2]! }] },
-            options: { indexAxis: 'y' },
+            options: {
+              indexAxis: 'y',
+              // Long part names would push the bars off a phone; the full names are in the label.
+              scales: { y: { ticks: { callback: (_value, i) => shorten(answer.parts[i]?.[0] ?? '', 22) } } },
+            },
           })}
         />
       )}
