@@ -81,6 +81,11 @@ describe.skipIf(SKIP_REASON !== '')(`job files between two devices${SKIP_REASON 
       await screenshot(page, 'review');
       expect(await axeViolations(page), 'axe on the review').toEqual([]);
 
+      // The import and the review ran in their workers, not on the page's thread.
+      const scripts = await page.evaluate(() => performance.getEntriesByType('resource').map((entry) => entry.name));
+      expect(scripts.some((name) => /exchange-worker-[\w-]+\.js$/.test(name))).toBe(true);
+      expect(scripts.some((name) => /review-worker-[\w-]+\.js$/.test(name))).toBe(true);
+
       // The dark theme: charts take the theme's colours and axe still finds nothing.
       await page.locator('.app-nav').getByRole('link', { name: 'Settings' }).click();
       await page.getByRole('radio', { name: 'Dark' }).check();

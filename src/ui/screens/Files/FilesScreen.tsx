@@ -1,14 +1,13 @@
 import { useEffect, useState } from 'preact/hooks';
-import { buildJobFile, selectForExport, type ExportSelection } from '../../../exchange/write';
-import { csvRecords } from '../../../exchange/csv';
-import { importJobFiles, type FileImportReport } from '../../../exchange/import';
+import type { FileImportReport } from '../../../exchange/import';
+import type { ExportSelection } from '../../../exchange/write';
 import type { Job } from '../../../model/job';
-import { idbImportStore, loadExchangePayload } from '../../../store/exchange';
 import { nowIso } from '../../../store/ids';
 import { getJob } from '../../../store/jobs';
 import { useApp } from '../../app-context';
 import { ScreenTitle } from '../../components/ScreenTitle';
-import { shareOrDownload, type OutgoingFile } from '../../share';
+import { defaultExchangeClient } from '../../bridges/exchange-bridge';
+import { shareOrDownload } from '../../share';
 import { ImportReport } from './ImportReport';
 
 type Scope = 'all' | 'dates' | 'job';
@@ -58,11 +57,6 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
           : scope === 'dates'
             ? { kind: 'dates', ...(from ? { from: dayStart(from) } : {}), ...(to ? { to: dayStart(to, true) } : {}) }
             : { kind: 'all' };
-      const payload = selectForExport(await loadExchangePayload(db), selection);
-      if (payload.jobs.length === 0) {
-        setState({ kind: 'failed', text: 'No jobs to send: nothing was made in those dates.' });
-        return;
-      }
       const at = nowIso();
       const stem =
         scope === 'job' && job !== undefined
@@ -71,19 +65,22 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
             ? `ripplewright-jobs-${from || 'start'}-to-${to || 'now'}`
             : `ripplewright-jobs-${at.slice(0, 10)}`;
       const me = technicians.find((t) => t.id === settings.technicianId);
-      const files: OutgoingFile[] = [];
-      let digest = '';
-      if (json) {
-        const built = await buildJobFile(payload, {
-          exportedAt: at,
-          exportedBy: { ...(me ? { technicianId: me.id, name: me.name } : {}), device: 'Ripplewright app' },
-        });
-        digest = built.file.sha256;
-        files.push({ name: `${stem}.json`, type: 'application/json', parts: [built.text] });
+      const exported = await defaultExchangeClient(db).exportFiles({
+        selection,
+        json,
+        csv,
+        stem,
+        exportedAt: at,
+        exportedBy: { ...(me ? { technicianId: me.id, name: me.name } : {}), device: 'Ripplewright app' },
+      });
+      if (exported.jobs === 0) {
+        setState({ kind: 'failed', text: 'No jobs to send: nothing was made in those dates.' });
+        return;
       }
-      if (csv) files.push({ name: `${stem}.csv`, type: 'text/csv', parts: [...csvRecords(payload)] });
+      const files = exported.files.map((file) => ({ name: file.name, type: file.type, parts: [file.blob] }));
+      const digest = exported.sha256;
       const outcome = await shareOrDownload(files, 'Ripplewright jobs');
-      const what = `${payload.jobs.length} job${payload.jobs.length === 1 ? '' : 's'}, ${payload.readings.length} reading${payload.readings.length === 1 ? '' : 's'}`;
+      const what = `${exported.jobs} job${exported.jobs === 1 ? '' : 's'}, ${exported.readings} reading${exported.readings === 1 ? '' : 's'}`;
       const names = files.map((file) => file.name).join(' and ');
       setState({
         kind: 'done',
@@ -165,10 +162,7 @@ function ImportPanel() {
     setProgress({ done: 0, total: chosen.length });
     try {
       const files = await Promise.all(chosen.map(async (file) => ({ name: file.name, content: new Uint8Array(await file.arrayBuffer()) })));
-      const done = await importJobFiles(files, idbImportStore(db), {
-        storeAt: nowIso(),
-        onFile: (_report, index, total) => setProgress({ done: index + 1, total }),
-      });
+      const done = await defaultExchangeClient(db).importFiles(files, nowIso(), (count, total) => setProgress({ done: count, total }));
       setReports(done);
       await reloadTechnicians();
     } catch (error) {
