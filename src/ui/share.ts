@@ -10,11 +10,13 @@ export interface OutgoingFile {
   parts: BlobPart[];
 }
 
-export type ShareOutcome = 'shared' | 'downloaded' | 'cancelled';
+/** "needs-tap": sharing is possible, but the browser wants a fresh tap (the export took a while). */
+export type ShareOutcome = 'shared' | 'downloaded' | 'cancelled' | 'needs-tap';
 
 /**
  * Shares the files, or downloads each when sharing files is not possible here.
- * @returns "cancelled" when the person closed the share sheet
+ * @returns "cancelled" when the person closed the share sheet; "needs-tap" when the browser
+ *          refused a share without a recent tap (call again from a button)
  * @throws the share error when sharing failed for another reason than a cancel
  */
 export async function shareOrDownload(files: readonly OutgoingFile[], title: string): Promise<ShareOutcome> {
@@ -25,8 +27,9 @@ export async function shareOrDownload(files: readonly OutgoingFile[], title: str
       return 'shared';
     } catch (error) {
       if (error instanceof DOMException && error.name === 'AbortError') return 'cancelled';
-      // NotAllowedError (no user activation left after the async export work): download instead.
-      if (!(error instanceof DOMException && error.name === 'NotAllowedError')) throw error;
+      // NotAllowedError: the tap that started a long export has expired; ask for another.
+      if (error instanceof DOMException && error.name === 'NotAllowedError') return 'needs-tap';
+      throw error;
     }
   }
   for (const file of asFiles) download(file);

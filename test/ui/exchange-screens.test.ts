@@ -109,6 +109,27 @@ describe('the job files screen: sending', () => {
     expect(read.ok && read.file.payload.jobs.map((job) => job.id)).toEqual(['job-b']);
   });
 
+  it('asks for a fresh tap when the share sheet refuses a share that waited on the export', async () => {
+    await seed();
+    const shared: File[][] = [];
+    let refusals = 1;
+    Object.assign(navigator, {
+      canShare: () => true,
+      share: async (data: { files: File[] }) => {
+        if (refusals-- > 0) throw new DOMException('needs a user gesture', 'NotAllowedError');
+        shared.push(data.files);
+      },
+    });
+    const saved = catchDownloads();
+    renderApp('#/files');
+    fireEvent.click(await screen.findByRole('button', { name: 'Send or save' }));
+    fireEvent.click(await screen.findByRole('button', { name: 'Share the files' }));
+    await screen.findByText(/^Shared ripplewright-jobs-.*\.json \(3 jobs, 8 readings\)/);
+    expect(shared).toHaveLength(1);
+    expect(saved).toHaveLength(0);
+    expect(screen.queryByRole('button', { name: 'Share the files' })).toBeNull();
+  });
+
   it('says so when the chosen dates hold no job, and sends nothing', async () => {
     await seed();
     const saved = catchDownloads();

@@ -7,7 +7,7 @@ import { getJob } from '../../../store/jobs';
 import { useApp } from '../../app-context';
 import { ScreenTitle } from '../../components/ScreenTitle';
 import { defaultExchangeClient } from '../../bridges/exchange-bridge';
-import { shareOrDownload } from '../../share';
+import { shareOrDownload, type OutgoingFile } from '../../share';
 import { ImportReport } from './ImportReport';
 
 type Scope = 'all' | 'dates' | 'job';
@@ -42,6 +42,22 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
   const [json, setJson] = useState(true);
   const [csv, setCsv] = useState(false);
   const [state, setState] = useState<{ kind: 'idle' } | { kind: 'working' } | { kind: 'done'; text: string } | { kind: 'failed'; text: string }>({ kind: 'idle' });
+  const [pending, setPending] = useState<{ files: OutgoingFile[]; what: string; digest: string } | null>(null);
+
+  const hand = async (files: OutgoingFile[], what: string, digest: string) => {
+    const outcome = await shareOrDownload(files, 'Ripplewright jobs');
+    const names = files.map((file) => file.name).join(' and ');
+    setPending(outcome === 'needs-tap' ? { files, what, digest } : null);
+    setState({
+      kind: 'done',
+      text:
+        outcome === 'cancelled'
+          ? 'Not sent: the share was closed.'
+          : outcome === 'needs-tap'
+            ? `${names} ready (${what}). Tap “Share the files” to send them.`
+            : `${outcome === 'shared' ? 'Shared' : 'Downloaded'} ${names} (${what}).${digest ? ` Check code (SHA-256): ${digest.slice(0, 16)}…` : ''}`,
+    });
+  };
 
   useEffect(() => {
     if (jobId === undefined) return;
@@ -50,6 +66,7 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
 
   const run = async () => {
     setState({ kind: 'working' });
+    setPending(null);
     try {
       const selection: ExportSelection =
         scope === 'job' && jobId !== undefined
@@ -78,17 +95,8 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
         return;
       }
       const files = exported.files.map((file) => ({ name: file.name, type: file.type, parts: [file.blob] }));
-      const digest = exported.sha256;
-      const outcome = await shareOrDownload(files, 'Ripplewright jobs');
       const what = `${exported.jobs} job${exported.jobs === 1 ? '' : 's'}, ${exported.readings} reading${exported.readings === 1 ? '' : 's'}`;
-      const names = files.map((file) => file.name).join(' and ');
-      setState({
-        kind: 'done',
-        text:
-          outcome === 'cancelled'
-            ? 'Not sent: the share was closed.'
-            : `${outcome === 'shared' ? 'Shared' : 'Downloaded'} ${names} (${what}).${digest ? ` Check code (SHA-256): ${digest.slice(0, 16)}…` : ''}`,
-      });
+      await hand(files, what, exported.sha256);
     } catch (error) {
       setState({ kind: 'failed', text: `The export did not work: ${error instanceof Error ? error.message : String(error)}` });
     }
@@ -140,6 +148,16 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
       <button type="button" class="primary" disabled={state.kind === 'working' || (!json && !csv)} onClick={() => void run()}>
         {state.kind === 'working' ? 'Preparing…' : 'Send or save'}
       </button>
+      {pending !== null ? (
+        <button type="button" class="secondary" onClick={() =>
+            void hand(pending.files, pending.what, pending.digest).catch((error: unknown) =>
+              setState({ kind: 'failed', text: `The share did not work: ${error instanceof Error ? error.message : String(error)}` }),
+            )
+          }
+        >
+          Share the files
+        </button>
+      ) : null}
       <p role="status" class={state.kind === 'failed' ? 'problem' : 'hint'}>
         {state.kind === 'done' || state.kind === 'failed' ? state.text : ''}
       </p>
