@@ -222,6 +222,24 @@ describe('the shop review', () => {
     expect(screen.getByText('No job matches.')).toBeTruthy();
   });
 
+  it('offers one unit’s history only once the jobs are narrowed to a few units', async () => {
+    const payload = smallPayload();
+    for (let i = 0; i < 61; i++) {
+      payload.assets.push({ ...copy(payload.assets[0]!), id: `many-${i}`, serial: `SER-${i}` });
+      payload.jobs.push({ ...copy(payload.jobs[0]!), id: `many-job-${i}`, assetId: `many-${i}` });
+    }
+    await seed(payload);
+    renderApp('#/review');
+    await screen.findByText('64 of 64 jobs');
+    expect(screen.queryByLabelText('One unit’s history')).toBeNull();
+    expect(screen.getByText(/narrow the jobs to a few units first/)).toBeTruthy();
+    fireEvent.input(screen.getByLabelText('Unit (kind, make, model, serial)'), { target: { value: 'ser-1' } });
+    await screen.findByText(/^\d+ of 64 jobs$/);
+    const unit = await screen.findByLabelText('One unit’s history');
+    // SER-1 and SER-10 … SER-19 hold the text "ser-1".
+    expect(within(unit).getAllByRole('option')).toHaveLength(1 + 11);
+  });
+
   it('follows one unit’s readings across its visits when the unit is picked', async () => {
     const payload = smallPayload();
     const second = copy(payload.jobs[0]!);

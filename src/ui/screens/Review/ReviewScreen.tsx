@@ -168,6 +168,8 @@ export function ReviewScreen({ makeClient = defaultReviewClient }: ReviewScreenP
               ))}
             </select>
           </div>
+        ) : answer?.assets === null ? (
+          <p class="hint">To follow one unit’s readings across its visits, narrow the jobs to a few units first (by unit or customer).</p>
         ) : null}
         <button type="button" class="secondary" onClick={() => setText(NO_FILTER)}>
           Clear the filter
