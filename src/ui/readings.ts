@@ -3,7 +3,7 @@
  * diagnosis input built from the readings stored for a job.
  */
 import { judge } from '../engine/diagnosis';
-import type { MeterValue, ReadingBand, ReadingKind, ReadingsInput, Verdict } from '../engine/diagnosis/types';
+import { READING_UNITS, type MeterValue, type ReadingBand, type ReadingKind, type ReadingsInput, type Verdict } from '../engine/diagnosis/types';
 import type { DiodeLabel } from '../engine/types';
 import type { Reading } from '../model/job';
 import { currentReadings } from '../store/readings';
@@ -22,18 +22,8 @@ const NAMES: Record<ReadingKind, string> = {
   esr: 'ESR',
 };
 
-export const UNITS: Record<ReadingKind, ReadingBand['unit']> = {
-  mainsAc: 'V',
-  acSecondary: 'V',
-  dcOut: 'V',
-  rippleAc: 'V',
-  rippleHz: 'Hz',
-  regulatorOut: 'V',
-  diodeForward: 'V',
-  diodeReverse: 'V',
-  capacitance: 'F',
-  esr: 'Ω',
-};
+/** The unit of each reading kind: the diagnosis contract's table. */
+export const UNITS: Readonly<Record<ReadingKind, ReadingBand['unit']>> = READING_UNITS;
 
 /** The reading's name: "DC output", "D3 forward", "C1 capacitance". */
 export function readingName(kind: ReadingKind, target?: string): string {
