@@ -7,17 +7,15 @@
  *   navigation start to FIRST_SCREEN_MARK on offline reloads, median and worst of several.
  * Skipped with a note when Chromium is missing. Flags: --skip-app.
  */
-import { spawn } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { FIRST_SCREEN_MARK } from '../src/ui/marks';
+import { buildProduction, CHROMIUM_ARGS, startPreview } from '../test/e2e/served-build';
 import { median, type BenchSection } from './report';
 
 // npm run bench runs from the repository root (and bundles this file elsewhere first).
-const ROOT = `${process.cwd()}/`;
 const CHROMIUM = process.env.RIPPLEWRIGHT_CHROMIUM ?? '/usr/bin/chromium';
 const BUDGET_GZIP_BYTES = 40 * 1024;
 const BUDGET_OFFLINE_MS = 1000;
@@ -34,35 +32,16 @@ export interface AppBudgetSummary {
   withinBudget: boolean;
 }
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once('error', reject);
-    server.listen(0, '127.0.0.1', () => {
-      const address = server.address();
-      server.close(() => (typeof address === 'object' && address !== null ? resolve(address.port) : reject(new Error('no port'))));
-    });
-  });
-}
 
 async function measure(): Promise<AppBudgetSummary> {
-  const { build } = await import('vite');
   const { chromium } = await import('playwright-core');
   const out = mkdtempSync(join(tmpdir(), 'ripplewright-bench-dist-'));
   const profile = mkdtempSync(join(tmpdir(), 'ripplewright-bench-profile-'));
-  const nodeEnv = process.env.NODE_ENV;
-  process.env.NODE_ENV = 'production';
-  try {
-    await build({ root: ROOT, configFile: `${ROOT}vite.config.ts`, mode: 'production', logLevel: 'error', build: { outDir: out, emptyOutDir: true } });
-  } finally {
-    process.env.NODE_ENV = nodeEnv;
-  }
-  const port = await freePort();
-  const server = spawn(process.execPath, [`${ROOT}node_modules/vite/bin/vite.js`, 'preview', '--outDir', out, '--host', '127.0.0.1', '--port', String(port), '--strictPort'], { cwd: ROOT, stdio: 'ignore' });
+  await buildProduction(out, 'error');
+  const { child: server, url } = await startPreview(out, 'ignore');
   // The server must not outlive the bench, however it ends.
   const stopServer = () => server.exitCode === null && server.kill('SIGTERM');
   process.once('exit', stopServer);
-  const url = `http://127.0.0.1:${port}/`;
   const context = await (async () => {
     for (let i = 0; i < 100; i++) {
       try {
@@ -75,7 +54,7 @@ async function measure(): Promise<AppBudgetSummary> {
       executablePath: CHROMIUM,
       headless: true,
       viewport: { width: 390, height: 844 },
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: CHROMIUM_ARGS,
     });
   })().catch((error: unknown) => {
     stopServer();

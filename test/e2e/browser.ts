@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { inject } from 'vitest';
+import { CHROMIUM_ARGS } from './served-build';
 
 export const CHROMIUM = inject('chromium');
 export const BASE_URL = inject('baseUrl');
@@ -29,7 +30,7 @@ export async function launchApp(path = ''): Promise<App> {
     executablePath: CHROMIUM,
     headless: true,
     viewport: PHONE,
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: CHROMIUM_ARGS,
   });
   const page = context.pages()[0] ?? (await context.newPage());
   const errors: string[] = [];

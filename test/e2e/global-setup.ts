@@ -3,12 +3,11 @@
  * on a free port, and tells the tests where it is and where Chromium is. Without Chromium the
  * tests skip, unless RIPPLEWRIGHT_REQUIRE_CHROMIUM=1 (CI), when the run fails here.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { existsSync, mkdirSync, rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import { fileURLToPath } from 'node:url';
-import { build } from 'vite';
 import type { TestProject } from 'vitest/node';
+import { buildProduction, startPreview } from './served-build';
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -26,17 +25,6 @@ export const DIST = `${ROOT}test-output/e2e-dist`;
 function findChromium(): string {
   const candidates = [process.env.RIPPLEWRIGHT_CHROMIUM, '/usr/bin/chromium', '/usr/bin/chromium-browser'];
   return candidates.find((path) => path !== undefined && path !== '' && existsSync(path)) ?? '';
-}
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once('error', reject);
-    server.listen(0, '127.0.0.1', () => {
-      const address = server.address();
-      server.close(() => (typeof address === 'object' && address !== null ? resolve(address.port) : reject(new Error('no port'))));
-    });
-  });
 }
 
 async function waitForServer(url: string, child: ChildProcess, ms: number): Promise<void> {
@@ -69,24 +57,10 @@ export default async function setup(project: TestProject): Promise<() => Promise
   }
   rmSync(DIST, { recursive: true, force: true });
   mkdirSync(DIST, { recursive: true });
-  // vitest runs with NODE_ENV=test, and Vite takes a build for production only when NODE_ENV says so
-  // (import.meta.env.PROD, which turns the service worker on).
-  const nodeEnv = process.env.NODE_ENV;
-  process.env.NODE_ENV = 'production';
-  try {
-    await build({ root: ROOT, configFile: `${ROOT}vite.config.ts`, mode: 'production', logLevel: 'warn', build: { outDir: DIST, emptyOutDir: true } });
-  } finally {
-    process.env.NODE_ENV = nodeEnv;
-  }
-  const port = await freePort();
-  // vite's own entry, not npx: stopping npx would leave vite running.
-  const child = spawn(process.execPath, [`${ROOT}node_modules/vite/bin/vite.js`, 'preview', '--outDir', DIST, '--host', '127.0.0.1', '--port', String(port), '--strictPort'], {
-    cwd: ROOT,
-    stdio: ['ignore', 'ignore', 'inherit'],
-  });
+  await buildProduction(DIST, 'warn');
+  const { child, url: baseUrl } = await startPreview(DIST, 'inherit');
   // However the run ends, the server goes with it.
   process.once('exit', () => child.exitCode === null && child.kill('SIGKILL'));
-  const baseUrl = `http://127.0.0.1:${port}/`;
   try {
     await waitForServer(baseUrl, child, 30_000);
   } catch (error) {
