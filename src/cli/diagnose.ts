@@ -1,8 +1,7 @@
-import { readFile } from 'node:fs/promises';
 import type { Readable } from 'node:stream';
 import { diagnose, type DiagnoseInput, type Diagnosis } from '../engine/diagnosis';
-import { EXIT_FAILED, EXIT_OK, parseCommandArgs, readAllText, UsageError, writeText, type Command } from './command';
-import { describeFailure, describeReadError, jsonLinesBatch, openLineInput } from './json-lines';
+import { EXIT_FAILED, EXIT_OK, parseCommandArgs, UsageError, writeText, type Command } from './command';
+import { describeFailure, describeReadError, jsonLinesBatch, openLineInput, readSourceText } from './json-lines';
 
 const USAGE = `Usage:
   ripplewright diagnose FILE         rank the likely faults for the readings in FILE (JSON)
@@ -82,13 +81,8 @@ export const diagnoseCommand: Command = {
     }
     const name = args.source === '-' ? 'stdin' : args.source;
     if (!args.batch) {
-      let text: string;
-      try {
-        text = args.source === '-' ? await readAllText(io.stdin) : await readFile(args.source, 'utf8');
-      } catch (error) {
-        await writeText(io.stderr, `ripplewright diagnose: cannot read ${name}: ${describeReadError(error)}\n`);
-        return EXIT_FAILED;
-      }
+      const text = await readSourceText(args.source, io, 'ripplewright diagnose');
+      if (text === null) return EXIT_FAILED;
       let result: Diagnosis;
       try {
         result = diagnoseValue(JSON.parse(text) as unknown);

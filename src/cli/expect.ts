@@ -1,4 +1,3 @@
-import { readFile } from 'node:fs/promises';
 import type { Readable, Writable } from 'node:stream';
 import { expectReadings } from '../engine';
 import type { SolveOptions, SupplyResult } from '../engine/types';
@@ -6,13 +5,12 @@ import {
   EXIT_FAILED,
   EXIT_OK,
   parseCommandArgs,
-  readAllText,
   UsageError,
   writeText,
   type CliIo,
   type Command,
 } from './command';
-import { describeFailure, describeReadError, jsonLinesBatch, openLineInput, type BatchSummary } from './json-lines';
+import { describeFailure, describeReadError, jsonLinesBatch, openLineInput, readSourceText, type BatchSummary } from './json-lines';
 
 export type { BatchErrorLine, BatchSummary } from './json-lines';
 
@@ -131,13 +129,8 @@ function convergenceWarning(result: SupplyResult): string {
  */
 export async function expectSingle(args: ExpectArgs, io: CliIo, expect: ExpectReadings): Promise<number> {
   const name = args.source === '-' ? 'stdin' : args.source;
-  let text: string;
-  try {
-    text = args.source === '-' ? await readAllText(io.stdin) : await readFile(args.source, 'utf8');
-  } catch (error) {
-    await writeText(io.stderr, `ripplewright expect: cannot read ${name}: ${describeReadError(error)}\n`);
-    return EXIT_FAILED;
-  }
+  const text = await readSourceText(args.source, io, 'ripplewright expect');
+  if (text === null) return EXIT_FAILED;
   let result: SupplyResult;
   try {
     result = solveText(text, expect, solveOptionsFrom(args));

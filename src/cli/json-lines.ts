@@ -1,8 +1,9 @@
 import { createReadStream } from 'node:fs';
+import { readFile } from 'node:fs/promises';
 import type { Readable, Writable } from 'node:stream';
 import { createInterface } from 'node:readline';
 import { SpecError } from '../engine';
-import { writeText, type CliIo } from './command';
+import { readAllText, writeText, type CliIo } from './command';
 
 /** What a failed batch line prints in place of a result. */
 export interface BatchErrorLine {
@@ -92,4 +93,17 @@ export async function openLineInput(source: string, io: CliIo): Promise<Readable
     stream.once('error', reject);
   });
   return stream;
+}
+
+/**
+ * The whole text of FILE, or of stdin for "-"; null after a "cannot read" message on stderr.
+ * @param command  the prefix of the message, e.g. "ripplewright expect"
+ */
+export async function readSourceText(source: string, io: CliIo, command: string): Promise<string | null> {
+  try {
+    return source === '-' ? await readAllText(io.stdin) : await readFile(source, 'utf8');
+  } catch (error) {
+    await writeText(io.stderr, `${command}: cannot read ${source === '-' ? 'stdin' : source}: ${describeReadError(error)}\n`);
+    return null;
+  }
 }
