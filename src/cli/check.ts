@@ -1,5 +1,5 @@
-import { readFile } from 'node:fs/promises';
-import { formatProblems, readJobFile, type ReadResult } from '../exchange/parse';
+import { createReadStream } from 'node:fs';
+import { formatProblems, JobFileReader, type ReadResult } from '../exchange/parse';
 import type { Readable } from 'node:stream';
 import { EXIT_FAILED, EXIT_OK, parseCommandArgs, UsageError, writeText, type CliIo, type Command } from './command';
 
@@ -28,27 +28,22 @@ function describeReadError(error: unknown): string {
   return error instanceof Error ? error.message : String(error);
 }
 
-/** A whole stream as bytes (not decoded: the reader checks the UTF-8 itself). */
-async function readAllBytes(stream: Readable): Promise<Uint8Array> {
-  const chunks: Buffer[] = [];
-  for await (const chunk of stream) chunks.push(typeof chunk === 'string' ? Buffer.from(chunk) : chunk);
-  return Buffer.concat(chunks);
-}
-
 /**
- * Reads and checks one job file named on the command line ("-" for stdin). Returns the read
+ * Reads and checks one job file named on the command line ("-" for stdin), a chunk at a time as
+ * it streams in (a version-2 file is checked line by line, never held whole). Returns the read
  * result, or undefined after printing "cannot read" on stderr when the file cannot be opened.
  */
 export async function readJobFileArgument(path: string, io: CliIo, command: string): Promise<ReadResult | undefined> {
   const name = path === '-' ? 'stdin' : path;
-  let bytes: Uint8Array;
+  const reader = new JobFileReader(name);
   try {
-    bytes = path === '-' ? await readAllBytes(io.stdin) : await readFile(path);
+    const stream: Readable = path === '-' ? io.stdin : createReadStream(path);
+    for await (const chunk of stream) reader.push(typeof chunk === 'string' ? Buffer.from(chunk) : (chunk as Buffer));
   } catch (error) {
     await writeText(io.stderr, `ripplewright ${command}: cannot read ${name}: ${describeReadError(error)}\n`);
     return undefined;
   }
-  return readJobFile(bytes, name);
+  return reader.finish();
 }
 
 /** Prints a refused file's problems on stderr, one per line. */

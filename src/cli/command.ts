@@ -56,6 +56,11 @@ export async function writeText(stream: Writable, text: string): Promise<void> {
   if (!stream.write(text)) await once(stream, 'drain');
 }
 
+/** Writes chunks of bytes in order, waiting for 'drain' as writeText does. */
+export async function writeParts(stream: Writable, parts: readonly Uint8Array[]): Promise<void> {
+  for (const part of parts) if (!stream.write(part)) await once(stream, 'drain');
+}
+
 /** Reads a whole stream as UTF-8 text. */
 export async function readAllText(stream: Readable): Promise<string> {
   const chunks: Buffer[] = [];

@@ -1,4 +1,4 @@
-import { csvRecords } from '../exchange/csv';
+import { csvChunks } from '../exchange/csv';
 import { printProblems, readJobFileArgument } from './check';
 import { EXIT_FAILED, EXIT_OK, parseCommandArgs, UsageError, writeText, type Command } from './command';
 
@@ -19,9 +19,6 @@ Options:
 
 Exit codes: 0 written; 1 the file could not be read or was refused; 2 bad arguments.
 `;
-
-/** Records are gathered into chunks of about this many characters per write. */
-const CHUNK_CHARS = 1 << 16;
 
 export const csvCommand: Command = {
   name: 'csv',
@@ -45,15 +42,7 @@ export const csvCommand: Command = {
       await printProblems(result, io, 'csv');
       return EXIT_FAILED;
     }
-    let chunk = '';
-    for (const record of csvRecords(result.file.payload, { bom: values['no-bom'] !== true })) {
-      chunk += record;
-      if (chunk.length >= CHUNK_CHARS) {
-        await writeText(io.stdout, chunk);
-        chunk = '';
-      }
-    }
-    if (chunk !== '') await writeText(io.stdout, chunk);
+    for (const chunk of csvChunks(result.file.payload, { bom: values['no-bom'] !== true })) await writeText(io.stdout, chunk);
     return EXIT_OK;
   },
 };

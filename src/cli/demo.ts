@@ -1,5 +1,5 @@
 import { DEMO_DEFAULT_END, DEMO_MAX_JOBS, DEMO_SHOP_NAME, demoJobFile } from '../exchange/demo';
-import { EXIT_OK, parseCommandArgs, UsageError, writeText, type Command } from './command';
+import { EXIT_OK, parseCommandArgs, UsageError, writeParts, writeText, type Command } from './command';
 
 const USAGE = `Usage:
   ripplewright demo [--jobs N] [--seed S] [--end TIME] [--months M] > demo.json
@@ -52,13 +52,13 @@ export const demoCommand: Command = {
       return EXIT_OK;
     }
     if (positionals.length > 0) throw new UsageError(`demo takes no FILE, got: ${positionals.join(' ')}`);
-    const text = await demoJobFile({
+    const parts = await demoJobFile({
       jobs: wholeNumber(values.jobs, '--jobs', 1, DEMO_MAX_JOBS, 100),
       seed: wholeNumber(values.seed, '--seed', -(2 ** 31), 2 ** 32 - 1, 1),
       end: endTime(values.end),
       months: wholeNumber(values.months, '--months', 1, 120, 12),
     });
-    await writeText(io.stdout, text);
+    await writeParts(io.stdout, parts);
     return EXIT_OK;
   },
 };

@@ -1,9 +1,9 @@
 import { formatProblems } from '../exchange/parse';
 import { mergePayloads, type MergeResult, type MergeSource } from '../exchange/merge';
-import { writeJobFile } from '../exchange/write';
+import { buildJobFile } from '../exchange/write';
 import { canonicalJson } from '../exchange/canonical';
 import { readJobFileArgument } from './check';
-import { EXIT_FAILED, EXIT_OK, parseCommandArgs, UsageError, writeText, type Command } from './command';
+import { EXIT_FAILED, EXIT_OK, parseCommandArgs, UsageError, writeParts, writeText, type Command } from './command';
 
 const USAGE = `Usage:
   ripplewright merge FILE... > merged.json
@@ -92,8 +92,8 @@ export const mergeCommand: Command = {
     const merged = mergePayloads(sources);
     const exportedAt = sources.reduce((latest, source) => (source.at > latest ? source.at : latest), sources[0]!.at);
     const by = typeof values.by === 'string' ? values.by : undefined;
-    const text = await writeJobFile(merged.payload, { exportedAt, exportedBy: { device: 'ripplewright merge', ...(by === undefined ? {} : { name: by }) } });
-    await writeText(io.stdout, text);
+    const built = await buildJobFile(merged.payload, { exportedAt, exportedBy: { device: 'ripplewright merge', ...(by === undefined ? {} : { name: by }) } });
+    await writeParts(io.stdout, built.parts);
     for (const line of mergeSummary(merged, sources.length)) await writeText(io.stderr, `ripplewright merge: ${line}\n`);
     return EXIT_OK;
   },

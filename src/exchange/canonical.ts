@@ -56,11 +56,19 @@ export async function sha256Hex(text: string): Promise<string> {
   return sha256HexOfBytes(encodeUtf8(text));
 }
 
-/** Lowercase hex SHA-256 of bytes, by WebCrypto (see sha256Hex). */
-export async function sha256HexOfBytes(bytes: Uint8Array): Promise<string> {
+/**
+ * SHA-256 of bytes, by WebCrypto: the 32 bytes. The bytes are copied before this returns, so the
+ * caller may change them at once. Rejects when the runtime has no WebCrypto.
+ */
+export async function sha256Bytes(bytes: Uint8Array): Promise<Uint8Array> {
   const subtle = web.crypto?.subtle;
   if (subtle === undefined) throw new Error('this runtime has no WebCrypto (crypto.subtle) to compute SHA-256');
-  const digest = new Uint8Array(await subtle.digest('SHA-256', bytes));
+  return new Uint8Array(await subtle.digest('SHA-256', bytes));
+}
+
+/** Lowercase hex SHA-256 of bytes, by WebCrypto (see sha256Hex). */
+export async function sha256HexOfBytes(bytes: Uint8Array): Promise<string> {
+  const digest = await sha256Bytes(bytes);
   let hex = '';
   for (const byte of digest) hex += byte.toString(16).padStart(2, '0');
   return hex;

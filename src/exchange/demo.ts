@@ -22,7 +22,7 @@ import type { Asset, IsoTime, Job, JobFinish, JobOutcome, Reading, SupplyNamepla
 import { emptyPayload, type JobPayload } from './format';
 import { sortPayload } from './order';
 import { SeededRandom } from './random';
-import { writeJobFile } from './write';
+import { buildJobFile } from './write';
 
 export interface DemoOptions {
   /** How many jobs (1 to 1 000 000). */
@@ -707,10 +707,11 @@ export function generateDemo(options: DemoOptions): JobPayload {
   return sortPayload(builder.payload);
 }
 
-/** The demo as a job file's text, exported at the period's end by the shop (see generateDemo). */
-export async function demoJobFile(options: DemoOptions): Promise<string> {
-  return writeJobFile(generateDemo(options), {
+/** The demo as a job file's bytes, a line per part, exported at the period's end by the shop (see generateDemo). */
+export async function demoJobFile(options: DemoOptions): Promise<Uint8Array[]> {
+  const built = await buildJobFile(generateDemo(options), {
     exportedAt: options.end ?? DEMO_DEFAULT_END,
     exportedBy: { name: `${DEMO_SHOP_NAME} (demo)`, device: 'ripplewright demo' },
   });
+  return built.parts;
 }

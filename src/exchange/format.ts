@@ -12,11 +12,15 @@ import type { Asset, IsoTime, Job, JobField, MergeConflict, Reading, Technician 
 export const FORMAT_ID = 'ripplewright-jobs';
 
 /**
- * The schema version this code writes and reads. A reader meeting a higher number says the file
- * was made by a newer version; the number goes up whenever a field is added, removed or changes
- * meaning (version-1 readers refuse fields they do not know, so additions need a new version).
+ * The schema version this code writes. A reader meeting a higher number says the file was made
+ * by a newer version; the number goes up whenever a field is added, removed or changes meaning,
+ * or the layout changes (readers refuse fields they do not know, so additions need a new
+ * version). Version 1 was one JSON object; version 2 is JSON Lines (docs/exchange-format.md).
  */
-export const SCHEMA_VERSION = 1;
+export const SCHEMA_VERSION = 2;
+
+/** Every version this code reads: all that were ever written. */
+export const READABLE_VERSIONS: readonly number[] = [1, 2];
 
 /** Who made the file: all optional, shown to the person importing. */
 export interface ExportedBy {
@@ -62,7 +66,10 @@ export interface JobPayload {
   recordConflicts: RecordConflict[];
 }
 
-/** The whole file as parsed and checked. `sha256` is over everything else (see canonical.ts). */
+/**
+ * The whole file as parsed and checked. `sha256` is the file's digest: in version 2 over the
+ * bytes before the seal line (digest.ts), in version 1 over the canonical JSON of the rest.
+ */
 export interface JobFile {
   format: typeof FORMAT_ID;
   schemaVersion: number;
@@ -81,6 +88,8 @@ export interface ExchangeProblem {
   jobId?: string;
   /** The record, in words: "reading 5c1e…", "asset a1", "technician t2". */
   record?: string;
+  /** The line of a version-2 file the problem is on (1 is the head). */
+  line?: number;
   /** Path of the value inside the file, e.g. "payload.readings[12].value". */
   field?: string;
   message: string;
@@ -93,6 +102,11 @@ export const LIMITS = Object.freeze({
    * file under this size always decodes into one string (V8 source, String::kMaxLength).
    */
   fileBytes: 500_000_000,
+  /**
+   * Bytes per line of a version-2 file, its newline not counted. Writers cut lines near 64 KiB;
+   * one job with every text at its longest is under 1 MiB, so no sound record needs more.
+   */
+  lineBytes: 16_777_216,
   jobs: 1_000_000,
   readings: 10_000_000,
   assets: 1_000_000,

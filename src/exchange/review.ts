@@ -5,7 +5,7 @@
  * is then one pass over typed arrays.
  */
 import type { Topology } from '../engine/types';
-import type { Asset, IsoTime, Job, Reading } from '../model/job';
+import { jobDate, type Asset, type IsoTime, type Job, type Reading } from '../model/job';
 import type { JobPayload } from './format';
 
 /** What the reviewer narrows the jobs to. Every part left out matches everything. */
@@ -60,10 +60,7 @@ function interned(values: readonly string[]): { list: string[]; codes: Int32Arra
   return { list: [...map.keys()], codes };
 }
 
-/** The job's date for the review: when work started, else when the job was made. */
-export function jobDate(job: Job): IsoTime {
-  return job.startedAt ?? job.createdAt;
-}
+export { jobDate };
 
 /** Builds the filter's columns from the records (one pass over jobs and assets). */
 export function buildReviewIndex(payload: Pick<JobPayload, 'jobs' | 'assets'>): ReviewIndex {

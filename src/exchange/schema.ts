@@ -46,6 +46,8 @@ export class Checker {
    */
   recordKind: string | undefined;
   recordId: string | undefined;
+  /** The line of a version-2 file being checked, for messages. */
+  line: number | undefined;
   private readonly path: (string | number)[] = [];
 
   /**
@@ -83,6 +85,7 @@ export class Checker {
     this.problemCount += 1;
     if (this.problems.length < LIMITS.problemsListed) {
       const problem: ExchangeProblem = { file: this.file, message };
+      if (this.line !== undefined) problem.line = this.line;
       if (this.jobId !== undefined) problem.jobId = this.jobId;
       const record = this.record ?? (this.recordKind !== undefined && this.recordId !== undefined ? `${this.recordKind} ${this.recordId.slice(0, 100)}` : undefined);
       if (record !== undefined) problem.record = record;
@@ -121,12 +124,17 @@ export function text(maxChars: number, nonEmpty = false): Check {
   };
 }
 
-const SHORT = text(LIMITS.shortTextChars);
+export const SHORT = text(LIMITS.shortTextChars);
 const SHORT_NON_EMPTY = text(LIMITS.shortTextChars, true);
-const LONG = text(LIMITS.longTextChars);
+export const LONG = text(LIMITS.longTextChars);
 
 /** Characters an id may use: UUIDs, and the "~" of a merge's reading variants (merge.ts). */
 const ID_PATTERN = /^[A-Za-z0-9._:~-]+$/;
+
+/** A quick yes for the usual id (what `id` accepts without a variant suffix); no means "ask `id`". */
+export function isPlainId(value: unknown): boolean {
+  return typeof value === 'string' && value.length > 0 && value.length <= LIMITS.idChars && ID_PATTERN.test(value);
+}
 
 /** A merge's name for a second reading under a taken id: the id, "~", 16 hex digits (merge.ts). */
 export const VARIANT_SUFFIX = /~[0-9a-f]{16}$/;
@@ -164,6 +172,11 @@ function isRealTime(text: string): boolean {
   return day <= days && digitsAt(text, 11, 2) <= 23 && digitsAt(text, 14, 2) <= 59 && digitsAt(text, 17, 2) <= 59;
 }
 
+/** Whether a value is a time in exactly Date.prototype.toISOString's form, naming a real instant. */
+export function isIsoTimeText(value: unknown): boolean {
+  return typeof value === 'string' && value.length === 24 && ISO_PATTERN.test(value) && isRealTime(value);
+}
+
 export const isoTime: Check = (value, c) => {
   if (typeof value !== 'string') return c.fail(`expected a UTC time like "2026-03-01T09:30:00.000Z", got ${describeType(value)}`);
   if (value.length !== 24 || !ISO_PATTERN.test(value) || !isRealTime(value)) {
@@ -185,7 +198,7 @@ export function oneOf<T extends string>(choices: readonly T[]): Check {
   };
 }
 
-const meterValue: Check = (value, c) => {
+export const meterValue: Check = (value, c) => {
   if (value === 'OL') return value;
   if (typeof value !== 'number' || !Number.isFinite(value)) return c.fail(`expected a number or "OL", got ${describeType(value)}`);
   return value;
@@ -277,7 +290,8 @@ export function object<T>(fields: FieldsOf<T>, what = 'an object'): Check {
   const known = new Set(names);
   return (value, c) => {
     if (!isPlainRecord(value)) return c.fail(`expected ${what}, got ${describeType(value)}`);
-    const out: Record<string, unknown> = {};
+    // A copy only when the checker asks for one: a read checks half a million records in place.
+    const out: Record<string, unknown> | undefined = c.copy ? {} : undefined;
     let ok = true;
     let present = 0;
     for (let i = 0; i < names.length; i++) {
@@ -296,13 +310,13 @@ export function object<T>(fields: FieldsOf<T>, what = 'an object'): Check {
       const checked = checks[i]!(value[name], c);
       c.leave();
       if (checked === INVALID) ok = false;
-      else if (c.copy) out[name] = checked;
+      else if (out) out[name] = checked;
     }
     if (countOwnKeys(value) !== present) {
       reportUnknownKeys(value, known, c);
       ok = false;
     }
-    return ok ? (c.copy ? out : value) : INVALID;
+    return ok ? (out ?? value) : INVALID;
   };
 }
 
@@ -319,7 +333,7 @@ function recordOf(keys: readonly string[], item: Check, what: string): Check {
   const known = new Set(keys);
   return (value, c) => {
     if (!isPlainRecord(value)) return c.fail(`expected ${what}, got ${describeType(value)}`);
-    const out: Record<string, unknown> = {};
+    const out: Record<string, unknown> | undefined = c.copy ? {} : undefined;
     let ok = true;
     let present = 0;
     for (const key of sortedKeys) {
@@ -329,13 +343,13 @@ function recordOf(keys: readonly string[], item: Check, what: string): Check {
       const checked = item(value[key], c);
       c.leave();
       if (checked === INVALID) ok = false;
-      else if (c.copy) out[key] = checked;
+      else if (out) out[key] = checked;
     }
     if (countOwnKeys(value) !== present) {
       reportUnknownKeys(value, known, c);
       ok = false;
     }
-    return ok ? (c.copy ? out : value) : INVALID;
+    return ok ? (out ?? value) : INVALID;
   };
 }
 
@@ -481,24 +495,29 @@ export const checkJob = object<Job>(
 
 export const READING_KINDS = [...LIVE_READING_KINDS, ...POWER_OFF_READING_KINDS] as const;
 
-export const checkReading = object<Reading>(
-  {
-    id: req(id),
-    jobId: req(id),
-    kind: req(oneOf(READING_KINDS)),
-    target: opt(text(20, true)),
-    value: req(meterValue),
-    text: req(SHORT),
-    takenAt: req(isoTime),
-    phase: req(oneOf(['before', 'after'])),
-    expectedLow: opt(finite),
-    expectedHigh: opt(finite),
-    verdict: opt(oneOf(['in', 'low', 'high'])),
-    supersedes: opt(id),
-    note: opt(LONG),
-  },
-  'a reading',
-);
+/** A reading's target: a part label of 1 to this many characters. */
+export const TARGET_CHARS = 20;
+export const READING_PHASES = ['before', 'after'] as const;
+export const VERDICTS = ['in', 'low', 'high'] as const;
+
+/** The check of each reading field, for reading records and for version 2's reading columns. */
+export const READING_FIELDS: FieldsOf<Reading> = {
+  id: req(id),
+  jobId: req(id),
+  kind: req(oneOf(READING_KINDS)),
+  target: opt(text(TARGET_CHARS, true)),
+  value: req(meterValue),
+  text: req(SHORT),
+  takenAt: req(isoTime),
+  phase: req(oneOf(READING_PHASES)),
+  expectedLow: opt(finite),
+  expectedHigh: opt(finite),
+  verdict: opt(oneOf(VERDICTS)),
+  supersedes: opt(id),
+  note: opt(LONG),
+};
+
+export const checkReading = object<Reading>(READING_FIELDS, 'a reading');
 
 export const checkAsset = object<Asset>(
   {

@@ -128,3 +128,11 @@ export interface MergeConflict {
   /** Where the dropped value came from (file name or device). */
   droppedFrom?: string;
 }
+
+/**
+ * A job's date, as the shop review filters and the export by dates selects: when work on site
+ * started, else when the job was made.
+ */
+export function jobDate(job: Pick<Job, 'startedAt' | 'createdAt'>): IsoTime {
+  return job.startedAt ?? job.createdAt;
+}

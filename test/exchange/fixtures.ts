@@ -2,10 +2,11 @@
  * Small hand-made records for the exchange tests, with the awkward text an export must carry,
  * and helpers to build files (including deliberately broken ones with a correct digest).
  */
+import { createHash } from 'node:crypto';
 import { canonicalJson, sha256Hex } from '../../src/exchange/canonical';
 import { generateDemo } from '../../src/exchange/demo';
-import { FORMAT_ID, SCHEMA_VERSION, type JobPayload } from '../../src/exchange/format';
-import type { Job, Reading } from '../../src/model/job';
+import { FORMAT_ID, type JobPayload } from '../../src/exchange/format';
+import type { Job, MergeConflict, Reading } from '../../src/model/job';
 
 export const T0 = '2026-03-02T09:00:00.000Z';
 export const T1 = '2026-03-02T10:15:00.000Z';
@@ -89,13 +90,15 @@ export function demoPayload(jobs: number, seed = 11): JobPayload {
 }
 
 /**
- * A file object with any content and a correct digest: what a buggy or hostile writer could
- * make. `envelope` members override the defaults; the digest is computed last.
+ * A version-1 file object (one JSON object, docs/exchange-format.md "Version 1") with any content
+ * and a correct digest: what a buggy or hostile writer could make. `envelope` members override
+ * the defaults; the digest (SHA-256 of the RFC 8785 canonical JSON without `sha256`) is computed
+ * last.
  */
 export async function sealedText(envelope: Record<string, unknown>): Promise<string> {
   const body: Record<string, unknown> = {
     format: FORMAT_ID,
-    schemaVersion: SCHEMA_VERSION,
+    schemaVersion: 1,
     exportedAt: T3,
     exportedBy: { device: 'test' },
     ...envelope,
@@ -103,4 +106,97 @@ export async function sealedText(envelope: Record<string, unknown>): Promise<str
   delete body.sha256;
   const sha256 = await sha256Hex(canonicalJson(body));
   return JSON.stringify({ ...body, sha256 });
+}
+
+/** The small payload with job-field and record conflicts, so that every kind of block has records (the demo has none). */
+export function conflictPayload(): JobPayload {
+  const payload = smallPayload();
+  payload.conflicts = [
+    { jobId: 'job-b', field: 'customer', kept: payload.jobs[1]!.customer, keptEditedAt: T0, dropped: 'Greywick Café (old name)', droppedEditedAt: T0, droppedFrom: 'phone of T. Brenner' },
+    // The losing version had no value: `dropped` is left out.
+    { jobId: 'job-a', field: 'status', kept: 'open', keptEditedAt: T0, droppedEditedAt: T0 } as MergeConflict,
+  ];
+  payload.recordConflicts = [
+    { record: 'asset', id: 'asset-1', field: 'model', kept: 'WM-700', keptAt: T3, dropped: 'WM-70O', droppedAt: T2, droppedFrom: 'tablet.json' },
+    { record: 'technician', id: 'tech-2', field: 'name', kept: payload.technicians[1]!.name, keptAt: T3, droppedAt: T2 },
+  ];
+  // A merge's second reading under a taken id (docs: "<id>~<16 hex digits>").
+  payload.readings.push({ ...payload.readings[1]!, id: 'r-2~0123456789abcdef', value: 0.413, text: '413mV' });
+  return payload;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Version 2 (JSON Lines). Everything here is computed independently of src/exchange: the digest
+// with node:crypto, the lines with JSON.stringify.
+// ---------------------------------------------------------------------------------------------
+
+/** Bytes per digest piece, as docs/exchange-format.md "The digest" states (65 536). */
+export const PIECE_BYTES = 65_536;
+
+/**
+ * The version-2 digest by its definition in docs/exchange-format.md, with node:crypto's SHA-256
+ * (FIPS 180-4): cut the body into 65 536-byte pieces, hash each, hash the piece digests one after
+ * another. Lowercase hex.
+ */
+export function referenceDigestHex(body: Uint8Array | string): string {
+  const bytes = typeof body === 'string' ? Buffer.from(body, 'utf8') : body;
+  const list = createHash('sha256');
+  for (let at = 0; at < bytes.length; at += PIECE_BYTES) {
+    list.update(createHash('sha256').update(bytes.subarray(at, at + PIECE_BYTES)).digest());
+  }
+  return list.digest('hex');
+}
+
+/**
+ * A version-2 file from any lines, with a seal holding a correct digest: what a buggy or hostile
+ * writer could make. A string is taken as the line's text exactly (no line feed); anything else
+ * is written with JSON.stringify (so non-ASCII stays unescaped, as another writer may leave it).
+ */
+export function sealedLines(lines: readonly unknown[]): string {
+  const body = lines.map((line) => `${typeof line === 'string' ? line : JSON.stringify(line)}\n`).join('');
+  return `${body}{"sha256":"${referenceDigestHex(body)}"}\n`;
+}
+
+export type Counts = Record<'technicians' | 'assets' | 'jobs' | 'readings' | 'conflicts' | 'recordConflicts', number>;
+
+/** How many records of each kind a payload holds, as a head's `counts`. */
+export function countsOf(payload: JobPayload): Counts {
+  return {
+    technicians: payload.technicians.length,
+    assets: payload.assets.length,
+    jobs: payload.jobs.length,
+    readings: payload.readings.length,
+    conflicts: payload.conflicts.length,
+    recordConflicts: payload.recordConflicts.length,
+  };
+}
+
+/** A version-2 head (format first), with `overrides` replacing or adding members. */
+export function headLine(counts: Partial<Counts>, overrides: Record<string, unknown> = {}): Record<string, unknown> {
+  const all: Counts = { technicians: 0, assets: 0, jobs: 0, readings: 0, conflicts: 0, recordConflicts: 0, ...counts };
+  return { format: FORMAT_ID, schemaVersion: 2, exportedAt: T3, exportedBy: { device: 'test' }, counts: all, ...overrides };
+}
+
+/** The lines of a file's text (each without its line feed), the text after the last one dropped. */
+export function linesOf(text: string): string[] {
+  const lines = text.split('\n');
+  lines.pop();
+  return lines;
+}
+
+/**
+ * Readings as one table of columns (docs/exchange-format.md, "The reading table"), written here
+ * independently of lines.ts: `jobs` is the file's list of job ids, which gives each `job` value.
+ * Optional columns no reading uses are left out.
+ */
+export function readingTable(readings: readonly Reading[], jobs: readonly string[]): Record<string, unknown[]> {
+  const columns = ['id', 'job', 'kind', 'target', 'value', 'text', 'takenAt', 'phase', 'expectedLow', 'expectedHigh', 'verdict', 'supersedes', 'note'] as const;
+  const optional = new Set(['target', 'expectedLow', 'expectedHigh', 'verdict', 'supersedes', 'note']);
+  const table: Record<string, unknown[]> = {};
+  for (const column of columns) {
+    const values = readings.map((reading) => (column === 'job' ? jobs.indexOf(reading.jobId) : (reading[column] ?? null)));
+    if (optional.has(column) && values.every((value) => value === null)) continue;
+    table[column] = values;
+  }
+  return table;
 }

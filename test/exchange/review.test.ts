@@ -12,6 +12,7 @@ import {
   timeOnJobByTechnician,
   type ReviewFilter,
 } from '../../src/exchange/review';
+import { selectForExport } from '../../src/exchange/write';
 import { demoPayload, smallPayload, T0, T2, T3 } from './fixtures';
 
 const shop = demoPayload(300, 8);
@@ -123,5 +124,29 @@ describe('chart figures', () => {
     expect(assetReadingSeries(p, 'asset-2', 'dcOut', 'after').map((point) => point.value)).toEqual([13.58]);
     const all = assetReadingSeries(shop, shop.assets[0]!.id, 'rippleAc');
     for (let i = 1; i < all.length; i++) expect(all[i]!.takenAt >= all[i - 1]!.takenAt).toBe(true);
+  });
+});
+
+describe('the export by dates and the review', () => {
+  it('pick the same jobs for the same days, dating a job by when work started', () => {
+    fc.assert(
+      fc.property(time, time, (a, b) => {
+        const [from, to] = a < b ? [a, b] : [b, a];
+        const exported = selectForExport(shop, { kind: 'dates', from, to }).jobs.map((job) => job.id).sort();
+        const reviewed = Array.from(filterJobs(index, { from, to }), (i) => shop.jobs[i]!.id).sort();
+        expect(exported).toEqual(reviewed);
+      }),
+      { numRuns: 60 },
+    );
+  });
+
+  it('takes a job made before the first day but worked on within the days', () => {
+    const store = smallPayload();
+    // job-a was made and started at T0; here work starts the next day.
+    const job = store.jobs.find((j) => j.id === 'job-a')!;
+    job.startedAt = '2026-03-03T09:00:00.000Z';
+    const picked = selectForExport(store, { kind: 'dates', from: '2026-03-03T00:00:00.000Z', to: '2026-03-04T00:00:00.000Z' });
+    expect(picked.jobs.map((j) => j.id).sort()).toEqual(['job-a', 'job-c']);
+    expect(job.createdAt < '2026-03-03T00:00:00.000Z').toBe(true);
   });
 });

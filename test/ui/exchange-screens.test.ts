@@ -134,7 +134,7 @@ describe('the job files screen: sending', () => {
     await seed();
     const saved = catchDownloads();
     renderApp('#/files');
-    fireEvent.click(await screen.findByLabelText('Jobs made between two dates'));
+    fireEvent.click(await screen.findByLabelText('Jobs worked on between two dates'));
     fireEvent.input(screen.getByLabelText('From (first day)'), { target: { value: '2030-01-01' } });
     fireEvent.click(screen.getByRole('button', { name: 'Send or save' }));
     await screen.findByText(/No jobs to send/);
@@ -158,7 +158,10 @@ describe('the job files screen: taking in', () => {
       r.jobId = `x-${r.jobId}`;
       if (r.supersedes) r.supersedes = `x-${r.supersedes}`;
     }
-    const badText = (await writeJobFile(broken, { exportedAt: later })).replace('"value":231', '"value":"two hundred"');
+    // The mains reading (231 V) of the reading table typed as words.
+    const written = await writeJobFile(broken, { exportedAt: later });
+    const badText = written.replace(/("value":\[[^\]]*)\b231\b/, '$1"two hundred"');
+    expect(badText).not.toBe(written);
     const before = await loadExchangePayload(db);
 
     renderApp('#/files');
@@ -169,7 +172,7 @@ describe('the job files screen: taking in', () => {
     const items = within(report).getAllByRole('listitem').filter((li) => li.parentElement?.classList.contains('report-list'));
     expect(items[0]!.textContent).toContain('office.json');
     expect(items[0]!.textContent).toMatch(/Nothing from this file was stored/);
-    expect(items[0]!.textContent).toMatch(/office\.json: job x-job-c: .*payload\.readings\[\d+\]\.value/);
+    expect(items[0]!.textContent).toMatch(/office\.json: line \d+: job x-job-c: .*payload\.readings\[\d+\]\.value/);
     expect(items[1]!.textContent).toMatch(/ada\.json.*1 job brought up to date/);
     const conflicts = within(items[1]!).getByRole('table');
     const row = within(conflicts).getByRole('row', { name: /job job-a: customer/ });
