@@ -10,7 +10,7 @@ import type { IsoTime, MergeConflict } from '../model/job';
 import type { ExchangeProblem, ExportedBy, JobPayload, RecordConflict } from './format';
 import { emptyPayload } from './format';
 import { mergePayloads, type MergeCounts, type ReadingClash } from './merge';
-import { readJobFile, type FileContent } from './parse';
+import { JobFileReader, readJobFile, type FileContent, type ReadResult } from './parse';
 import { VARIANT_SUFFIX } from './schema';
 
 /** The ids a file's records carry, for the store to look up what it already holds. */
@@ -29,8 +29,11 @@ export interface ImportTransaction {
    * the conflicts and record conflicts about these jobs, assets and technicians.
    */
   read(ids: PayloadIds): Promise<JobPayload>;
-  /** Adds these records, replacing any stored ones with the same id. */
-  write(changes: JobPayload): Promise<void>;
+  /**
+   * Adds these records, replacing any stored ones with the same id. `onWritten`, when given, is
+   * told now and then how many of the records are written (for progress on large files).
+   */
+  write(changes: JobPayload, onWritten?: (done: number, total: number) => void): Promise<void>;
 }
 
 export interface ImportStore {
@@ -41,9 +44,29 @@ export interface ImportStore {
   transaction<T>(work: (tx: ImportTransaction) => Promise<T>): Promise<T>;
 }
 
+/** A file's bytes as they arrive, in order (a browser File's stream, a file on disk). */
+export interface ChunkSource {
+  /** The file's size in bytes, for progress (0 when not known). */
+  size: number;
+  chunks(): AsyncIterable<Uint8Array>;
+}
+
 export interface ImportFile {
   name: string;
-  content: FileContent;
+  /** The whole file, or its bytes as they stream in (read a line at a time, never held whole). */
+  content: FileContent | ChunkSource;
+}
+
+/** Where a long import has got to. */
+export interface ImportProgress {
+  /** The file being taken in (0 for the first) of how many, and its name. */
+  file: number;
+  files: number;
+  name: string;
+  /** "reading": checking the file, `done` of `total` bytes; "saving": writing, `done` of `total` records. */
+  stage: 'reading' | 'saving';
+  done: number;
+  total: number;
 }
 
 export type FileImportReport =
@@ -79,8 +102,32 @@ export interface ImportOptions {
   storeAt: IsoTime;
   /** Name the store's side of a conflict is credited to. Default "this device". */
   storeName?: string;
-  /** Called after each file with its report (for progress on long imports). */
+  /** Called after each file with its report. */
   onFile?: (report: FileImportReport, index: number, total: number) => void;
+  /** Called as a file is read and as its records are written (often: throttle what it shows). */
+  onProgress?: (progress: ImportProgress) => void;
+}
+
+function isChunkSource(content: ImportFile['content']): content is ChunkSource {
+  return typeof content === 'object' && !(content instanceof Uint8Array);
+}
+
+/** Reads one file to its checked records, reporting the bytes read as they come. */
+async function readImportFile(content: ImportFile['content'], name: string, progress: (done: number, total: number) => void): Promise<ReadResult> {
+  if (!isChunkSource(content)) {
+    const size = typeof content === 'string' ? content.length : content.byteLength;
+    progress(0, size);
+    const result = await readJobFile(content, name);
+    progress(size, size);
+    return result;
+  }
+  const reader = new JobFileReader(name);
+  progress(0, content.size);
+  for await (const chunk of content.chunks()) {
+    reader.push(chunk);
+    progress(reader.bytesRead, content.size);
+  }
+  return reader.finish();
 }
 
 function idsOf(payload: JobPayload): PayloadIds {
@@ -101,7 +148,16 @@ export async function importJobFiles(files: readonly ImportFile[], store: Import
   const reports: FileImportReport[] = [];
   for (const [index, { name, content }] of files.entries()) {
     let report: FileImportReport;
-    const read = await readJobFile(content, name);
+    const progress = (stage: ImportProgress['stage']) => (done: number, total: number) =>
+      options.onProgress?.({ file: index, files: files.length, name, stage, done, total });
+    let read: ReadResult;
+    try {
+      read = await readImportFile(content, name, progress('reading'));
+    } catch (error) {
+      // The bytes could not be had (a file removed while it was read, a stream that broke).
+      const message = `could not be read: ${error instanceof Error ? error.message : String(error)}`;
+      read = { ok: false, name, problems: [{ file: name, message }], problemCount: 1 };
+    }
     if (!read.ok) {
       report = { name, ok: false, stage: 'file', problems: read.problems, problemCount: read.problemCount };
     } else {
@@ -113,7 +169,7 @@ export async function importJobFiles(files: readonly ImportFile[], store: Import
           const result = mergePayloads([{ name, at: file.exportedAt, payload: file.payload }], {
             base: { name: options.storeName ?? 'this device', at: options.storeAt, payload: stored },
           });
-          await tx.write(result.changes);
+          await tx.write(result.changes, progress('saving'));
           return result;
         });
         report = {
@@ -162,7 +218,11 @@ export class MemoryImportStore implements ImportStore {
       const staged = copyRecords(this.records);
       const tx: ImportTransaction = {
         read: async (ids) => readIds(staged, ids),
-        write: async (changes) => writeInto(staged, changes),
+        write: async (changes, onWritten) => {
+          writeInto(staged, changes);
+          const written = Object.values(changes).reduce((sum: number, list: unknown[]) => sum + list.length, 0);
+          onWritten?.(written, written);
+        },
       };
       const result = await work(tx);
       this.records = staged;

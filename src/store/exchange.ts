@@ -3,6 +3,7 @@
  * `ImportStore` so an imported file is read, merged and written in one transaction over every
  * record store (a bad write leaves nothing behind).
  */
+import { unwrap } from 'idb';
 import type { ImportStore, ImportTransaction, PayloadIds } from '../exchange/import';
 import type { JobPayload } from '../exchange/format';
 import type { Reading } from '../model/job';
@@ -78,25 +79,43 @@ export function idbImportStore(db: Database): ImportStore {
           ],
         };
       };
-      const write = async (changes: JobPayload): Promise<void> => {
+      const write = async (changes: JobPayload, onWritten?: (done: number, total: number) => void): Promise<void> => {
         const jobs = tx.objectStore('jobs');
-        const readings = tx.objectStore('readings');
         const assetOfJob = new Map<string, string | undefined>(changes.jobs.map((job) => [job.id, job.assetId]));
         for (const jobId of new Set(changes.readings.map((reading) => reading.jobId))) {
           if (!assetOfJob.has(jobId)) assetOfJob.set(jobId, (await jobs.get(jobId))?.assetId);
         }
-        const puts: Promise<unknown>[] = [];
-        for (const job of changes.jobs) puts.push(jobs.put(job));
+        // Plain IndexedDB requests, no promise each: a failed one aborts the transaction, and
+        // commit() rejects with its error. Requests complete in the order made, so the n-th
+        // request's success means n records are written.
+        const total = changes.jobs.length + changes.readings.length + changes.assets.length + changes.technicians.length + changes.conflicts.length + changes.recordConflicts.length;
+        const every = Math.max(1, Math.floor(total / 200));
+        let made = 0;
+        const track = (request: IDBRequest) => {
+          made += 1;
+          if (onWritten !== undefined && (made % every === 0 || made === total)) {
+            const done = made;
+            request.addEventListener('success', () => onWritten(done, total));
+          }
+        };
+        onWritten?.(0, total);
+        const store = (name: (typeof EXCHANGE_STORES)[number]) => unwrap(tx.objectStore(name));
+        const jobStore = store('jobs');
+        for (const job of changes.jobs) track(jobStore.put(job));
+        const readingStore = store('readings');
         for (const reading of changes.readings) {
           // The asset history index (schema v2) finds imported readings too.
           const assetId = assetOfJob.get(reading.jobId);
-          puts.push(readings.put(assetId === undefined ? { ...reading } : { ...reading, assetId }));
+          track(readingStore.put(assetId === undefined ? reading : { ...reading, assetId }));
         }
-        for (const asset of changes.assets) puts.push(tx.objectStore('assets').put(asset));
-        for (const technician of changes.technicians) puts.push(tx.objectStore('technicians').put(technician));
-        for (const conflict of changes.conflicts) puts.push(tx.objectStore('conflicts').add(conflict));
-        for (const conflict of changes.recordConflicts) puts.push(tx.objectStore('recordConflicts').add(conflict));
-        await Promise.all(puts);
+        const assetStore = store('assets');
+        for (const asset of changes.assets) track(assetStore.put(asset));
+        const technicianStore = store('technicians');
+        for (const technician of changes.technicians) track(technicianStore.put(technician));
+        const conflictStore = store('conflicts');
+        for (const conflict of changes.conflicts) track(conflictStore.add(conflict));
+        const recordConflictStore = store('recordConflicts');
+        for (const conflict of changes.recordConflicts) track(recordConflictStore.add(conflict));
       };
       return commit(tx, () => work({ read, write }));
     },

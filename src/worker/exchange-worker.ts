@@ -14,8 +14,8 @@ async function answer(request: ExchangeRequest): Promise<ExchangeReply> {
   const db = await openStore({ name: request.dbName });
   try {
     if (request.type === 'export') return { id: request.id, ok: true, type: 'export', result: await exportFromStore(db, request.request) };
-    const reports = await importIntoStore(db, request.files, request.storeAt, (done, total) =>
-      scope.postMessage({ id: request.id, ok: true, type: 'progress', done, total } satisfies ExchangeReply),
+    const reports = await importIntoStore(db, request.files, request.storeAt, (progress) =>
+      scope.postMessage({ id: request.id, ok: true, type: 'progress', progress } satisfies ExchangeReply),
     );
     return { id: request.id, ok: true, type: 'import', reports };
   } finally {

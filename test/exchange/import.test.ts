@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { emptyPayload, type JobPayload } from '../../src/exchange/format';
-import { importJobFiles, MemoryImportStore, type ImportStore } from '../../src/exchange/import';
+import { importJobFiles, MemoryImportStore, type ImportProgress, type ImportStore } from '../../src/exchange/import';
 import { sortPayload } from '../../src/exchange/order';
 import { writeJobFile } from '../../src/exchange/write';
-import { sealedText, smallPayload, T1, T2, T3 } from './fixtures';
+import { demoPayload, sealedText, smallPayload, T1, T2, T3 } from './fixtures';
 
 const NOW = '2026-12-01T12:00:00.000Z';
 const copy = <T>(value: T): T => JSON.parse(JSON.stringify(value)) as T;
@@ -48,6 +48,52 @@ describe('importing job files into a store', () => {
     const stored = store.snapshot();
     expect(stored.jobs).toHaveLength(6);
     expect(stored.readings).toHaveLength(16);
+  });
+
+  it('reads a file streamed in small chunks, reporting the bytes read and then the records saved', async () => {
+    const store = new MemoryImportStore();
+    const bytes = new TextEncoder().encode(await fileOf(demoPayload(60)));
+    const chunkBytes = 4096;
+    const source = {
+      size: bytes.byteLength,
+      async *chunks() {
+        for (let at = 0; at < bytes.byteLength; at += chunkBytes) yield bytes.slice(at, at + chunkBytes);
+      },
+    };
+    const seen: ImportProgress[] = [];
+    const [report] = await importJobFiles([{ name: 'streamed.json', content: source }], store, { storeAt: NOW, onProgress: (p) => seen.push(p) });
+    expect(report?.ok).toBe(true);
+    expect(store.snapshot().readings).toHaveLength(demoPayload(60).readings.length);
+    const reading = seen.filter((p) => p.stage === 'reading');
+    // One report per chunk after the first, bytes rising to the whole file.
+    expect(reading.length).toBeGreaterThanOrEqual(Math.ceil(bytes.byteLength / chunkBytes));
+    expect(reading.map((p) => p.done)).toEqual([...reading.map((p) => p.done)].sort((a, b) => a - b));
+    expect(reading.at(-1)).toMatchObject({ file: 0, files: 1, name: 'streamed.json', done: bytes.byteLength, total: bytes.byteLength });
+    // Then the saving: every job, reading, asset and technician of the file, all new here.
+    const records = (['jobs', 'readings', 'assets', 'technicians'] as const).reduce((sum, kind) => sum + demoPayload(60)[kind].length, 0);
+    expect(seen.filter((p) => p.stage === 'saving').at(-1)).toMatchObject({ done: records, total: records });
+    expect(seen.findIndex((p) => p.stage === 'saving')).toBeGreaterThan(seen.findLastIndex((p) => p.stage === 'reading'));
+  });
+
+  it('reports a stream that breaks as a file that could not be read, and goes on with the next', async () => {
+    const store = new MemoryImportStore();
+    const broken = {
+      size: 100,
+      async *chunks(): AsyncGenerator<Uint8Array> {
+        yield new TextEncoder().encode('{"format":"ripplewright-jobs"');
+        throw new Error('the file was removed while it was read');
+      },
+    };
+    const reports = await importJobFiles(
+      [
+        { name: 'gone.json', content: broken },
+        { name: 'good.json', content: await fileOf(smallPayload()) },
+      ],
+      store,
+      { storeAt: NOW },
+    );
+    expect(reports[0]).toMatchObject({ ok: false, stage: 'file', problems: [{ file: 'gone.json', message: 'could not be read: the file was removed while it was read' }] });
+    expect(reports[1]?.ok).toBe(true);
   });
 
   it('changes nothing when the same file is imported twice', async () => {

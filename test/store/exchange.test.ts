@@ -40,6 +40,23 @@ describe('the IndexedDB import store', () => {
     db.close();
   });
 
+  it('says how many records it has written as the writes complete, ending at all of them', async () => {
+    const db = await openFresh();
+    const payload = smallPayload();
+    const saving: [number, number][] = [];
+    await importJobFiles([{ name: 'shop.json', content: await fileOf(payload) }], idbImportStore(db), {
+      storeAt: NOW,
+      onProgress: (p) => {
+        if (p.stage === 'saving') saving.push([p.done, p.total]);
+      },
+    });
+    const records = payload.jobs.length + payload.readings.length + payload.assets.length + payload.technicians.length;
+    expect(saving[0]).toEqual([0, records]);
+    expect(saving.at(-1)).toEqual([records, records]);
+    expect(saving.map(([done]) => done)).toEqual([...saving.map(([done]) => done)].sort((a, b) => a - b));
+    db.close();
+  });
+
   it('changes nothing when the same file is imported twice', async () => {
     const db = await openFresh();
     const store = idbImportStore(db);

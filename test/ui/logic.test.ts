@@ -7,6 +7,7 @@ import { latestBySlot, toReadingsInput, verdictFor } from '../../src/ui/readings
 import { parseRoute, routeHash, type Route } from '../../src/ui/router';
 import { Saver } from '../../src/ui/saver';
 import { currentStep } from '../../src/ui/screens/Test/guide';
+import { importProgressWords } from '../../src/ui/screens/Files/FilesScreen';
 
 let n = 0;
 function reading(kind: Reading['kind'], value: Reading['value'], extra: Partial<Reading> = {}): Reading {
@@ -114,5 +115,19 @@ describe('the saver', () => {
     expect(saver.current.failed).toEqual([]);
     expect(saver.current.pending).toBe(0);
     expect(saver.current.savedAt).not.toBeNull();
+  });
+});
+
+describe('import progress in words', () => {
+  it('says which file is checked and how far, then how many records are saved', () => {
+    const reading = importProgressWords({ file: 1, files: 3, name: 'ada.json', stage: 'reading', done: 450, total: 1000 });
+    expect(reading).toEqual({ text: 'Checking file 2 of 3, ada.json: 45 %', fraction: 0.45 });
+    const saving = importProgressWords({ file: 0, files: 1, name: 'shop.json', stage: 'saving', done: 12000, total: 550000 });
+    expect(saving.text).toBe('Saving file 1 of 1, shop.json: 12,000 of 550,000 records');
+    expect(saving.fraction).toBeCloseTo(12000 / 550000, 12);
+  });
+
+  it('leaves the bar indeterminate when the file’s size is not known', () => {
+    expect(importProgressWords({ file: 0, files: 1, name: 'x.json', stage: 'reading', done: 10, total: 0 })).toEqual({ text: 'Checking file 1 of 1, x.json', fraction: undefined });
   });
 });

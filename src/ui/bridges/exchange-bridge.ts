@@ -2,22 +2,22 @@
  * Export and import through the exchange worker (src/worker/exchange-worker.ts), so writing or
  * checking a large job file does not hold up the screen; in-process where there are no workers.
  */
-import type { FileImportReport, ImportFile } from '../../exchange/import';
+import type { FileImportReport, ImportProgress } from '../../exchange/import';
 import type { IsoTime } from '../../model/job';
 import type { Database } from '../../store/schema';
-import { exportFromStore, importIntoStore, type ExportRequest, type ExportResult } from '../../worker/exchange';
+import { exportFromStore, importIntoStore, type ExportRequest, type ExportResult, type IncomingFile } from '../../worker/exchange';
 import type { ExchangeReply, ExchangeRequest } from '../../worker/exchange-protocol';
 
 export interface ExchangeClient {
   exportFiles(request: ExportRequest): Promise<ExportResult>;
-  importFiles(files: ImportFile[], storeAt: IsoTime, onProgress?: (done: number, total: number) => void): Promise<FileImportReport[]>;
+  importFiles(files: IncomingFile[], storeAt: IsoTime, onProgress?: (progress: ImportProgress) => void): Promise<FileImportReport[]>;
 }
 
 type Body = ExchangeRequest extends infer R ? (R extends ExchangeRequest ? Omit<R, 'id'> : never) : never;
 
 let shared: Worker | undefined;
 let next = 0;
-const waiting = new Map<number, { resolve: (reply: ExchangeReply) => void; reject: (error: unknown) => void; progress?: (done: number, total: number) => void }>();
+const waiting = new Map<number, { resolve: (reply: ExchangeReply) => void; reject: (error: unknown) => void; progress?: (progress: ImportProgress) => void }>();
 
 function worker(): Worker {
   if (shared) return shared;
@@ -26,7 +26,7 @@ function worker(): Worker {
     const reply = event.data;
     const entry = waiting.get(reply.id);
     if (entry === undefined) return;
-    if (reply.ok && reply.type === 'progress') return entry.progress?.(reply.done, reply.total);
+    if (reply.ok && reply.type === 'progress') return entry.progress?.(reply.progress);
     waiting.delete(reply.id);
     entry.resolve(reply);
   });
@@ -40,7 +40,7 @@ function worker(): Worker {
   return started;
 }
 
-async function send(body: Body, progress?: (done: number, total: number) => void): Promise<ExchangeReply> {
+async function send(body: Body, progress?: (progress: ImportProgress) => void): Promise<ExchangeReply> {
   const id = ++next;
   const reply = await new Promise<ExchangeReply>((resolve, reject) => {
     waiting.set(id, progress ? { resolve, reject, progress } : { resolve, reject });

@@ -1,5 +1,5 @@
 import { useEffect, useState } from 'preact/hooks';
-import type { FileImportReport } from '../../../exchange/import';
+import type { FileImportReport, ImportProgress } from '../../../exchange/import';
 import type { ExportSelection } from '../../../exchange/write';
 import type { Job } from '../../../model/job';
 import { nowIso } from '../../../store/ids';
@@ -91,7 +91,7 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
         exportedBy: { ...(me ? { technicianId: me.id, name: me.name } : {}), device: 'Ripplewright app' },
       });
       if (exported.jobs === 0) {
-        setState({ kind: 'failed', text: 'No jobs to send: nothing was made in those dates.' });
+        setState({ kind: 'failed', text: 'No jobs to send: no job is dated in those days (the day work started, or the job was made).' });
         return;
       }
       const files = exported.files.map((file) => ({ name: file.name, type: file.type, parts: [file.blob] }));
@@ -119,7 +119,7 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
         </label>
         <label class="check">
           <input type="radio" name="export-scope" checked={scope === 'dates'} onChange={() => setScope('dates')} />
-          Jobs made between two dates
+          Jobs worked on between two dates
         </label>
         {scope === 'dates' ? (
           <div class="pair">
@@ -165,9 +165,20 @@ function ExportPanel({ jobId }: { jobId: string | undefined }) {
   );
 }
 
+/** Where an import has got to, in words, with the fraction done for the progress bar. */
+export function importProgressWords(progress: ImportProgress): { text: string; fraction: number | undefined } {
+  const which = `file ${progress.file + 1} of ${progress.files}, ${progress.name}`;
+  const fraction = progress.total > 0 ? Math.min(1, progress.done / progress.total) : undefined;
+  if (progress.stage === 'reading') {
+    return { text: `Checking ${which}${fraction === undefined ? '' : `: ${Math.floor(fraction * 100)} %`}`, fraction };
+  }
+  return { text: `Saving ${which}: ${progress.done.toLocaleString('en-GB')} of ${progress.total.toLocaleString('en-GB')} records`, fraction };
+}
+
 function ImportPanel() {
   const { db, reloadTechnicians } = useApp();
-  const [progress, setProgress] = useState<{ done: number; total: number } | null>(null);
+  const [busy, setBusy] = useState(false);
+  const [progress, setProgress] = useState<ImportProgress | null>(null);
   const [reports, setReports] = useState<FileImportReport[] | null>(null);
 
   const [failure, setFailure] = useState<string | null>(null);
@@ -177,18 +188,23 @@ function ImportPanel() {
     const chosen = [...list];
     setReports(null);
     setFailure(null);
-    setProgress({ done: 0, total: chosen.length });
+    setBusy(true);
+    setProgress(null);
     try {
-      const files = await Promise.all(chosen.map(async (file) => ({ name: file.name, content: new Uint8Array(await file.arrayBuffer()) })));
-      const done = await defaultExchangeClient(db).importFiles(files, nowIso(), (count, total) => setProgress({ done: count, total }));
+      // The files go to the exchange worker as they are (a File is passed by reference) and are
+      // read there as they stream from the disk, so a large file is never copied whole.
+      const files = chosen.map((file) => ({ name: file.name, blob: file }));
+      const done = await defaultExchangeClient(db).importFiles(files, nowIso(), setProgress);
       setReports(done);
       await reloadTechnicians();
     } catch (error) {
       setFailure(`The files could not be read: ${error instanceof Error ? error.message : String(error)}`);
     } finally {
+      setBusy(false);
       setProgress(null);
     }
   };
+  const words = progress === null ? null : importProgressWords(progress);
 
   return (
     <section aria-labelledby="import-title" class="panel">
@@ -199,18 +215,19 @@ function ImportPanel() {
         <input
           type="file"
           multiple
-          accept=".json,application/json"
-          disabled={progress !== null}
+          accept=".json,.jsonl,application/json"
+          disabled={busy}
           onChange={(event) => {
             const input = event.currentTarget;
             void take(input.files).finally(() => (input.value = ''));
           }}
         />
       </label>
-      {progress !== null ? (
-        <p role="status">
-          Taking in file {Math.min(progress.done + 1, progress.total)} of {progress.total}…
-        </p>
+      {busy ? (
+        <div class="import-progress">
+          <p role="status">{words?.text ?? 'Opening the files…'}</p>
+          <progress max={1} value={words?.fraction} aria-label="Taking in the files" />
+        </div>
       ) : null}
       {failure !== null ? <p class="notice problem" role="alert">{failure}</p> : null}
       {reports !== null ? <ImportReport reports={reports} /> : null}
