@@ -25,7 +25,8 @@
 import type { IsoTime, Job, JobField, MergeConflict, Reading } from '../model/job';
 import { canonicalJson, fnv1a64Hex, sameJson } from './canonical';
 import { ASSET_FIELDS, JOB_FIELDS, type AssetField, type JobPayload, type RecordConflict } from './format';
-import { sortPayload } from './order';
+import { sortPayload, sortReadings } from './order';
+import { IdTable } from './id-table';
 import { VARIANT_SUFFIX } from './schema';
 
 /** One input to a merge. */
@@ -123,48 +124,113 @@ interface Tagged {
 }
 
 /**
- * Records of all sources grouped by key. A group of one (the common case) is stored as a number
- * (source index · 2^24 + record index, 2^24 being above LIMITS.readings) rather than an object,
- * so half a million readings cost no allocation; larger groups are arrays of those numbers.
+ * Records of all sources grouped by key, in the order keys are first seen. Each record has a
+ * place in one numbering of all sources' records; an IdTable (id-table.ts) finds a key's group
+ * and each group is a chain of places in an Int32Array, so a million readings cost no object
+ * per record and no rehashing map (which cost most of a re-import's merge, bench/exchange.ts).
  */
-const SOURCE_STRIDE = 2 ** 24;
-
 class Groups<T> {
-  readonly byKey = new Map<string, number | number[]>();
+  /** Where each source's records start in the numbering. */
+  private readonly starts: number[] = [];
+  private readonly records: T[][] = [];
+  private readonly keys: string[];
+  /** The next place in the same group, or -1. */
+  private readonly next: Int32Array;
+  /** For the first place of a group: its last place (where the chain grows). Else -1. */
+  private readonly last: Int32Array;
 
   constructor(
     private readonly sources: readonly Tagged[],
-    private readonly list: (payload: JobPayload) => T[],
+    list: (payload: JobPayload) => T[],
     key: (record: T) => string,
   ) {
-    sources.forEach(({ source }, s) => {
+    let count = 0;
+    for (const { source } of sources) {
       const records = list(source.payload);
-      for (let i = 0; i < records.length; i++) {
-        const id = key(records[i]!);
-        const code = s * SOURCE_STRIDE + i;
-        const entry = this.byKey.get(id);
-        if (entry === undefined) this.byKey.set(id, code);
-        else if (typeof entry === 'number') this.byKey.set(id, [entry, code]);
-        else entry.push(code);
+      this.starts.push(count);
+      this.records.push(records);
+      count += records.length;
+    }
+    this.keys = new Array(count);
+    this.next = new Int32Array(count).fill(-1);
+    this.last = new Int32Array(count).fill(-1);
+    const table = new IdTable(count, (place) => this.keys[place]!);
+    let place = 0;
+    for (const records of this.records) {
+      for (const record of records) {
+        this.keys[place] = key(record);
+        const first = table.add(place);
+        if (first === -1) this.last[place] = place;
+        else {
+          this.next[this.last[first]!] = place;
+          this.last[first] = place;
+        }
+        place += 1;
       }
-    });
+    }
   }
 
-  record(code: number): T {
-    return this.list(this.sources[Math.floor(code / SOURCE_STRIDE)]!.source.payload)[code % SOURCE_STRIDE]!;
+  private sourceOf(place: number): number {
+    let s = this.starts.length - 1;
+    while (this.starts[s]! > place) s -= 1;
+    return s;
   }
 
-  version(code: number): Version<T> {
-    const tagged = this.sources[Math.floor(code / SOURCE_STRIDE)]!;
-    return { record: this.record(code), source: tagged.source, fromBase: tagged.fromBase };
+  record(place: number): T {
+    const s = this.sourceOf(place);
+    return this.records[s]![place - this.starts[s]!]!;
+  }
+
+  /** Whether the record at `place` is the base's. */
+  fromBase(place: number): boolean {
+    return this.sources[this.sourceOf(place)]!.fromBase;
+  }
+
+  version(place: number): Version<T> {
+    const tagged = this.sources[this.sourceOf(place)]!;
+    return { record: this.record(place), source: tagged.source, fromBase: tagged.fromBase };
+  }
+
+  /** Each group in first-seen order: its key, its first place, and all its places when more than one. */
+  *groups(): Generator<{ key: string; first: number; places: number[] | undefined }> {
+    for (let place = 0; place < this.keys.length; place++) {
+      if (this.last[place] === -1) continue;
+      if (this.next[place] === -1) {
+        yield { key: this.keys[place]!, first: place, places: undefined };
+        continue;
+      }
+      const places: number[] = [];
+      for (let at = place; at !== -1; at = this.next[at]!) places.push(at);
+      yield { key: this.keys[place]!, first: place, places };
+    }
   }
 
   /** Each group's merged record, in first-seen order. */
   merged(merge: (versions: Version<T>[], key: string) => T): T[] {
     const out: T[] = [];
-    for (const [key, entry] of this.byKey) out.push(typeof entry === 'number' ? this.record(entry) : merge(entry.map((code) => this.version(code)), key));
+    for (const { key, first, places } of this.groups()) out.push(places === undefined ? this.record(first) : merge(places.map((place) => this.version(place)), key));
     return out;
   }
+}
+
+/** Whether two readings are the same, field by field (what sameJson says, for this one shape). */
+function sameReading(a: Reading, b: Reading): boolean {
+  return (
+    a === b ||
+    (a.id === b.id &&
+      a.jobId === b.jobId &&
+      a.kind === b.kind &&
+      a.value === b.value &&
+      a.text === b.text &&
+      a.takenAt === b.takenAt &&
+      a.phase === b.phase &&
+      a.target === b.target &&
+      a.expectedLow === b.expectedLow &&
+      a.expectedHigh === b.expectedHigh &&
+      a.verdict === b.verdict &&
+      a.supersedes === b.supersedes &&
+      a.note === b.note)
+  );
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -386,10 +452,13 @@ export function mergePayloads(sources: readonly MergeSource[], options: { base?:
   let technicians: JobPayload['technicians'];
   let readings: Reading[];
   let duplicateReadings = 0;
+  /** Readings no base reading has the id of: the ones to write (all of them without a base). */
+  let newReadings: Reading[] = [];
   const only = all.length === 1 ? all[0]!.source.payload : undefined;
   if (only && !only.readings.some((reading) => baseReadingId(reading) !== reading.id)) {
     // One consistent source (a first import): its ids are unique and nothing can collide.
     ({ jobs, assets, technicians, readings } = only);
+    if (!all[0]!.fromBase) newReadings = readings;
   } else {
     jobs = new Groups(all, (p) => p.jobs, (job) => job.id).merged((versions) => mergeJob(versions, foundConflicts));
     assets = new Groups(all, (p) => p.assets, (asset) => asset.id).merged((versions) =>
@@ -400,13 +469,28 @@ export function mergePayloads(sources: readonly MergeSource[], options: { base?:
     );
     const readingGroups = new Groups(all, (p) => p.readings, baseReadingId);
     readings = [];
-    for (const [baseId, entry] of readingGroups.byKey) {
-      if (typeof entry === 'number') {
+    for (const { key: baseId, first, places } of readingGroups.groups()) {
+      if (places === undefined) {
         // One reading under this id: kept as it is (a renamed copy keeps its name).
-        readings.push(readingGroups.record(entry));
-      } else {
-        duplicateReadings += mergeReadingGroup(baseId, entry.map((code) => readingGroups.version(code)), readings, readingClashes);
+        const reading = readingGroups.record(first);
+        readings.push(reading);
+        if (!readingGroups.fromBase(first)) newReadings.push(reading);
+        continue;
       }
+      const reading = readingGroups.record(first);
+      if (reading.id === baseId && places.every((place) => sameReading(readingGroups.record(place), reading))) {
+        // The usual group: the same reading from the store and a file, or from two files.
+        readings.push(reading);
+        duplicateReadings += places.length - 1;
+        if (!places.some((place) => readingGroups.fromBase(place))) newReadings.push(reading);
+        continue;
+      }
+      const versions = places.map((place) => readingGroups.version(place));
+      const start = readings.length;
+      duplicateReadings += mergeReadingGroup(baseId, versions, readings, readingClashes);
+      // Written over the base: those whose id no base reading of the group has.
+      const baseIds = new Set(versions.filter((version) => version.fromBase).map((version) => version.record.id));
+      for (let i = start; i < readings.length; i++) if (!baseIds.has(readings[i]!.id)) newReadings.push(readings[i]!);
     }
   }
 
@@ -443,11 +527,16 @@ export function mergePayloads(sources: readonly MergeSource[], options: { base?:
     conflicts: [...knownConflicts.values()],
     recordConflicts: [...knownRecordConflicts.values()],
   });
-  const { changes, counts } = compareWithBase(payload, basePayload, duplicateReadings);
+  const { changes, counts } = compareWithBase(payload, basePayload, duplicateReadings, newReadings);
   return { payload, changes, newConflicts, newRecordConflicts, readingClashes, counts };
 }
 
-function compareWithBase(payload: JobPayload, base: JobPayload | undefined, duplicates: number): { changes: JobPayload; counts: MergeCounts } {
+function compareWithBase(
+  payload: JobPayload,
+  base: JobPayload | undefined,
+  duplicates: number,
+  newReadings: readonly Reading[],
+): { changes: JobPayload; counts: MergeCounts } {
   if (base === undefined) {
     const added = (n: number) => ({ added: n, updated: 0, unchanged: 0 });
     return {
@@ -480,8 +569,7 @@ function compareWithBase(payload: JobPayload, base: JobPayload | undefined, dupl
   const jobs = changedRecords(payload.jobs, base?.jobs);
   const assets = changedRecords(payload.assets, base?.assets);
   const technicians = changedRecords(payload.technicians, base?.technicians);
-  const baseReadingIds = new Set((base?.readings ?? []).map((reading) => reading.id));
-  const readings = payload.readings.filter((reading) => !baseReadingIds.has(reading.id));
+  const readings = newReadings.length === payload.readings.length ? payload.readings : sortReadings(newReadings, payload.jobs);
   const baseConflicts = new Set((base?.conflicts ?? []).map(conflictIdentity));
   const baseRecordConflicts = new Set((base?.recordConflicts ?? []).map(recordConflictIdentity));
   const changes: JobPayload = {

@@ -56,9 +56,10 @@ const compareReadingsInJob = (a: Reading, b: Reading): number =>
 
 /**
  * Readings in job order, then by (takenAt, id): a counting sort by job (one map lookup per
- * reading, no per-job arrays), then a sort of each job's few readings.
+ * reading, no per-job arrays), then a sort of each job's few readings. Readings of jobs not in
+ * `jobs` go last, by (jobId, takenAt, id).
  */
-function sortReadings(readings: readonly Reading[], jobs: readonly Job[]): Reading[] {
+export function sortReadings(readings: readonly Reading[], jobs: readonly Job[]): Reading[] {
   const jobIndex = new Map<string, number>();
   jobs.forEach((job, i) => jobIndex.set(job.id, i));
   const buckets = jobs.length + 1; // the last holds readings of jobs not in the payload

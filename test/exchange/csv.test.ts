@@ -1,7 +1,7 @@
 import { parse } from 'csv-parse/sync';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { CSV_HEADERS, CSV_NUMERIC_HEADERS, csvRecords, neutraliseFormula, quoteField, READING_UNITS, restoreFormula, toCsv } from '../../src/exchange/csv';
+import { CSV_HEADERS, CSV_NUMERIC_HEADERS, csvChunks, csvRecords, neutraliseFormula, quoteField, READING_UNITS, restoreFormula, toCsv } from '../../src/exchange/csv';
 import type { JobPayload } from '../../src/exchange/format';
 import type { Reading } from '../../src/model/job';
 import { demoPayload, smallPayload } from './fixtures';
@@ -114,6 +114,30 @@ describe('CSV of readings', () => {
     expect(records).toHaveLength(payload.readings.length + 1);
     for (const record of records) expect(record.endsWith('\r\n')).toBe(true);
     expect(records.join('')).toBe(toCsv(payload));
+  });
+
+  it('gathers the records into pieces of about the asked size, whole records each, the same text in all', () => {
+    const payload = demoPayload(40);
+    const chunks = [...csvChunks(payload, {}, 2000)];
+    expect(chunks.join('')).toBe(toCsv(payload));
+    expect(chunks.length).toBeGreaterThan(2);
+    for (const chunk of chunks.slice(0, -1)) {
+      expect(chunk.length).toBeGreaterThanOrEqual(2000);
+      expect(chunk.endsWith('\r\n')).toBe(true);
+    }
+  });
+
+  it('gives each reading its own job’s cells when jobs alternate', () => {
+    const payload = smallPayload();
+    // Readings of job-a and job-b interleaved: the job columns must follow each row's job.
+    payload.readings = [payload.readings[0]!, payload.readings[3]!, payload.readings[1]!, payload.readings[4]!];
+    const rows = (parse(toCsv(payload, { bom: false }), { columns: true }) as Record<string, string>[]).map((row) => [row.reading_id, row.job_id, row.asset_id]);
+    expect(rows).toEqual([
+      ['r-1', 'job-a', 'asset-1'],
+      ['r-4', 'job-b', 'asset-2'],
+      ['r-2', 'job-a', 'asset-1'],
+      ['r-5', 'job-b', 'asset-2'],
+    ]);
   });
 
   it('round-trips any text in any text column', () => {
