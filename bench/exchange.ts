@@ -15,7 +15,7 @@ import type { JobPayload } from '../src/exchange/format';
 import { mergePayloads } from '../src/exchange/merge';
 import { readJobFile } from '../src/exchange/parse';
 import { buildReviewIndex, filterJobs, type ReviewFilter } from '../src/exchange/review';
-import { selectForExport, writeJobFile } from '../src/exchange/write';
+import { buildJobFile, joinParts, selectForExport } from '../src/exchange/write';
 import { formatTable, median, sig, type BenchContext, type BenchSection, type SectionResult } from './report';
 
 const EXPORTED_AT = '2026-11-27T17:00:00.000Z';
@@ -73,14 +73,15 @@ export const exchangeSection: BenchSection = {
     // timings run with a heap like the app's and not one holding several copies of the shop.
     const generated = await timeMs(async () => {
       const shop = generateDemo({ jobs: jobCount, seed: 2026 });
-      const bytes = new TextEncoder().encode(await writeJobFile(shop, { exportedAt: EXPORTED_AT }));
+      const bytes = joinParts((await buildJobFile(shop, { exportedAt: EXPORTED_AT })).parts);
       const exportSet = selectForExport(shop, { kind: 'jobs', jobIds: shop.jobs.slice(0, exportJobCount).map((job) => job.id) });
       return { bytes, exportSet };
     });
     const { bytes: bigBytes, exportSet } = generated.value;
 
     // Export first, while the heap is small.
-    const json = await medianMs(3, () => writeJobFile(exportSet, { exportedAt: EXPORTED_AT }));
+    // As the app's export: the file's lines as bytes, ready for a Blob (no one string of it all).
+    const json = await medianMs(3, () => buildJobFile(exportSet, { exportedAt: EXPORTED_AT }));
     const csv = await medianMs(3, () => toCsv(exportSet).length);
 
     // Import: bytes → checked records (UTF-8, JSON, every field, references, SHA-256), then the

@@ -1,5 +1,7 @@
 /**
- * The benchmark: `npx tsx bench/run.ts [--seconds=0.3] [--skip-ngspice]` (npm run bench).
+ * The benchmark: `npx tsx bench/run.ts [--seconds=0.3] [--skip-ngspice] [--only=KEY,KEY]` (npm run
+ * bench). `--only` runs the sections with those keys (engineSolve, ngspiceTransient, diagnosis,
+ * exchange, appBudget).
  * Prints one table per section, then a final line of JSON with every section's summary.
  * Add a section: write a `BenchSection` (bench/report.ts) and list it here.
  */
@@ -27,7 +29,9 @@ async function main(): Promise<void> {
     node: process.version,
     date: new Date().toISOString(),
   };
+  const only = context.flags.get('only')?.split(',');
   for (const section of SECTIONS) {
+    if (only !== undefined && !only.includes(section.key)) continue;
     console.log(`\n== ${section.title}`);
     const result = await section.run(context);
     if (result.table) console.log(formatTable(result.table));
