@@ -4,6 +4,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { describe, expect, it } from 'vitest';
+import { generateDemo } from '../../src/exchange/demo';
+import { buildJobFile, joinParts } from '../../src/exchange/write';
 import { launchApp, loadDemo, screenshot, SKIP_REASON, waitForJobs, waitForSaved } from './browser';
 
 const TAGS = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa', 'best-practice'];
@@ -110,6 +112,37 @@ describe.skipIf(SKIP_REASON !== '')(`job files between two devices${SKIP_REASON 
       await page.emulateMedia({ media: 'screen' });
     } finally {
       await receiver.close();
+      rmSync(scratch, { recursive: true, force: true });
+    }
+  });
+
+  it('takes in a large file in the worker, saying how far it has got, and lists its jobs in the review', async () => {
+    const scratch = mkdtempSync(join(tmpdir(), 'ripplewright-files-'));
+    // An invented shop's year from another technician's phone: a file of many lines.
+    const shop = generateDemo({ jobs: 1200, seed: 31 });
+    const file = join(scratch, 'other-phone.json');
+    writeFileSync(file, joinParts((await buildJobFile(shop, { exportedAt: '2026-11-27T17:00:00.000Z' })).parts));
+    const app = await launchApp();
+    try {
+      const { page } = app;
+      await waitForJobs(page);
+      await page.locator('.app-nav').getByRole('link', { name: 'Files' }).click();
+      await page.getByLabel('Choose job files').setInputFiles(file);
+      // The progress: checking the bytes, then saving the records, then the report.
+      const status = page.locator('.import-progress [role=status]');
+      await status.getByText(/^(Checking|Saving) file 1 of 1, other-phone\.json/).waitFor();
+      await page.locator('.import-progress progress').waitFor();
+      await status.getByText(/^Saving file 1 of 1, other-phone\.json: [\d,]+ of [\d,]+ records$/).waitFor({ timeout: 120_000 });
+      await screenshot(page, 'import-progress');
+      await page.getByRole('heading', { name: '1 file taken in' }).waitFor({ timeout: 120_000 });
+      await expect(page.locator('.report-ok').textContent()).resolves.toMatch(new RegExp(`${shop.jobs.length.toLocaleString('en-GB').replace(',', ',?')} new jobs, ${shop.readings.length.toLocaleString('en-GB').replace(',', ',?')} new readings`));
+      expect(await page.locator('.import-progress').count()).toBe(0);
+      await page.locator('.app-nav').getByRole('link', { name: 'Review' }).click();
+      // The count as the page's locale writes it ("1,200" or "1200").
+      const count = String(shop.jobs.length).split('').join('[,.\\s\\u202f]?');
+      await page.getByText(new RegExp(`^${count} of ${count} jobs`)).waitFor({ timeout: 60_000 });
+    } finally {
+      await app.close();
       rmSync(scratch, { recursive: true, force: true });
     }
   });
