@@ -18,6 +18,7 @@ interface SubtleDigest {
 }
 interface Utf8Encoder {
   encode(text: string): Uint8Array;
+  encodeInto(text: string, into: Uint8Array): { read: number; written: number };
 }
 interface Utf8Decoder {
   decode(bytes: Uint8Array): string;
@@ -30,9 +31,23 @@ interface WebGlobals {
 
 const web = globalThis as unknown as WebGlobals;
 
+let encoder: Utf8Encoder | undefined;
+let lenientDecoder: Utf8Decoder | undefined;
+let strictDecoder: Utf8Decoder | undefined;
+
 /** UTF-8 bytes of a string (lone surrogates become U+FFFD, as the Encoding Standard says). */
 export function encodeUtf8(text: string): Uint8Array {
-  return new web.TextEncoder().encode(text);
+  encoder ??= new web.TextEncoder();
+  return encoder.encode(text);
+}
+
+/** The bytes of ASCII text followed by one line feed (the caller knows the text is ASCII). */
+export function encodeAsciiLine(text: string): Uint8Array {
+  encoder ??= new web.TextEncoder();
+  const out = new Uint8Array(text.length + 1);
+  encoder.encodeInto(text, out);
+  out[text.length] = 0x0a;
+  return out;
 }
 
 /**
@@ -43,9 +58,12 @@ export function encodeUtf8(text: string): Uint8Array {
  * holds U+FFFD, which is either in the file or stands for bytes that were not UTF-8.
  */
 export function decodeUtf8Strict(bytes: Uint8Array): string {
-  const text = new web.TextDecoder('utf-8', { fatal: false, ignoreBOM: true }).decode(bytes);
+  // One decoder of each kind for every call: a file of thousands of lines decodes each.
+  lenientDecoder ??= new web.TextDecoder('utf-8', { fatal: false, ignoreBOM: true });
+  const text = lenientDecoder.decode(bytes);
   if (!text.includes('\uFFFD')) return text;
-  return new web.TextDecoder('utf-8', { fatal: true, ignoreBOM: true }).decode(bytes);
+  strictDecoder ??= new web.TextDecoder('utf-8', { fatal: true, ignoreBOM: true });
+  return strictDecoder.decode(bytes);
 }
 
 /**

@@ -8,7 +8,7 @@
 export * from './format';
 export { canonicalJson, sha256Hex } from './canonical';
 export { readJobFile, JobFileReader, formatProblem, formatProblems, digestText, type ReadResult, type FileContent } from './parse';
-export { buildJobFile, writeJobFile, joinParts, encodeAscii, selectForExport, ExportError, type BuiltFile, type WriteOptions, type ExportSelection } from './write';
+export { buildJobFile, writeJobFile, joinParts, encodeAsciiLine, selectForExport, ExportError, type BuiltFile, type WriteOptions, type ExportSelection } from './write';
 export { pieceDigestHex, PieceHasher, DIGEST_PIECE_BYTES } from './digest';
 export { mergePayloads, type MergeSource, type MergeResult, type MergeCounts, type ReadingClash } from './merge';
 export { sortPayload } from './order';
