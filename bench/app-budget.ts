@@ -39,6 +39,8 @@ export interface AppBudgetSummary {
     readings: number;
     fileMegabytes: number;
     importSeconds: number;
+    /** Until the records were checked and merged with the store and the writing began. */
+    checkedSeconds: number;
     importLongTasks: { count: number; longestMs: number };
     reviewSeconds: number;
   };
@@ -143,6 +145,9 @@ async function measure(importJobs: number): Promise<AppBudgetSummary> {
     await watchLongTasks(page);
     const importStart = Date.now();
     await page.getByLabel('Choose job files').setInputFiles(file);
+    // The progress line says when the checking and merging are done and the writing begins.
+    await page.locator('.import-progress [role=status]').getByText(/^Saving /).waitFor({ timeout: 30 * 60_000 });
+    const checkedSeconds = (Date.now() - importStart) / 1000;
     await page.getByRole('heading', { name: '1 file taken in' }).waitFor({ timeout: 30 * 60_000 });
     const importSeconds = (Date.now() - importStart) / 1000;
     const importLongTasks = await page.evaluate(() => (window as unknown as { longTasks: number[] }).longTasks);
@@ -161,6 +166,7 @@ async function measure(importJobs: number): Promise<AppBudgetSummary> {
         readings: shop.readings.length,
         fileMegabytes: Number((bytes.byteLength / 1e6).toFixed(1)),
         importSeconds: Number(importSeconds.toFixed(1)),
+        checkedSeconds: Number(checkedSeconds.toFixed(1)),
         importLongTasks: { count: importLongTasks.length, longestMs: Math.round(Math.max(0, ...importLongTasks)) },
         reviewSeconds: Number(reviewSeconds.toFixed(2)),
       },
@@ -193,7 +199,7 @@ export const appBudgetSection: BenchSection = {
           ['main-thread tasks over 50 ms (demo, guided test, waveform)', `${s.longTasks.count}, longest ${s.longTasks.longestMs} ms`, 'none'],
           [
             `take in a job file of ${s.bigImport.jobs} jobs / ${s.bigImport.readings} readings (${s.bigImport.fileMegabytes} MB) through the Files screen, to the report`,
-            `${s.bigImport.importSeconds} s`,
+            `${s.bigImport.importSeconds} s (read, checked and merged in ${s.bigImport.checkedSeconds} s, then written)`,
             '—',
           ],
           ['main-thread tasks over 50 ms during that import', `${s.bigImport.importLongTasks.count}, longest ${s.bigImport.importLongTasks.longestMs} ms`, 'none'],

@@ -89,7 +89,9 @@ export class JobFileReader {
     }
     this.chunks.push(chunk);
     this.pending += chunk.byteLength;
-    if (this.mode === 'start') this.detect(false);
+    // Only once the first line is complete, or too long to be a head (so tiny chunks cost no
+    // repeated joining).
+    if (this.mode === 'start' && (chunk.includes(0x0a) || this.pending > HEAD_PROBE_BYTES + BOM.length)) this.detect(false);
   }
 
   private stop(result: ReadResult): void {

@@ -36,6 +36,45 @@ export async function loadExchangePayload(db: Database): Promise<JobPayload> {
   return { jobs, readings: readings.map(toFileReading), assets, technicians, conflicts, recordConflicts };
 }
 
+/** The parts of an idb object store that heldRecords uses. */
+interface KeyedStore<V> {
+  count(): Promise<number>;
+  getAllKeys(): Promise<IDBValidKey[]>;
+  getAll(query?: IDBKeyRange): Promise<V[]>;
+  get(key: string): Promise<V | undefined>;
+}
+
+/**
+ * The stored records whose keys a file names. One request per key costs a large file hundreds of
+ * thousands of requests (most finding nothing when the file is new); so when the file names
+ * about as many keys as the store holds, the store's keys come in one request and only the held
+ * ones are fetched: one by one when few, all at once when most of the store is wanted.
+ *
+ * @param wanted      the keys the file names
+ * @param isWanted    whether a stored key is one of them (or goes with one)
+ * @param alsoRange   for each wanted key, a key range of stored records that go with it (the
+ *                    merge's renamed readings), looked up when asking key by key
+ */
+async function heldRecords<V>(store: KeyedStore<V>, wanted: readonly string[], isWanted: (key: string) => boolean, alsoRange?: (key: string) => IDBKeyRange): Promise<V[]> {
+  if (wanted.length === 0) return [];
+  const stored = await store.count();
+  if (stored === 0) return [];
+  if (stored > 4 * wanted.length) {
+    const [exact, ranges] = await Promise.all([
+      Promise.all(wanted.map((key) => store.get(key))),
+      alsoRange === undefined ? [] : Promise.all(wanted.map((key) => store.getAll(alsoRange(key)))),
+    ]);
+    return [...exact.filter((record): record is Awaited<V> => record !== undefined), ...ranges.flat()] as V[];
+  }
+  const held = (await store.getAllKeys()).filter((key): key is string => typeof key === 'string' && isWanted(key));
+  if (held.length === 0) return [];
+  if (held.length * 2 > stored) {
+    const heldSet = new Set(held);
+    return (await store.getAll()).filter((record) => heldSet.has((record as { id: string }).id));
+  }
+  return (await Promise.all(held.map((key) => store.get(key)))).filter((record): record is Awaited<V> => record !== undefined) as V[];
+}
+
 /**
  * src/exchange's ImportStore over the app's database. Each transaction spans every record
  * store; `work` must await only this transaction's requests (and synchronous work) so
@@ -46,37 +85,28 @@ export function idbImportStore(db: Database): ImportStore {
     transaction<T>(work: (tx: ImportTransaction) => Promise<T>): Promise<T> {
       const tx = db.transaction([...EXCHANGE_STORES], 'readwrite');
       const read = async (ids: PayloadIds): Promise<JobPayload> => {
-        const jobs = tx.objectStore('jobs');
-        const readings = tx.objectStore('readings');
-        const assets = tx.objectStore('assets');
-        const technicians = tx.objectStore('technicians');
-        const conflicts = tx.objectStore('conflicts').index('by-job');
-        const recordConflicts = tx.objectStore('recordConflicts').index('by-record');
-        const present = <V>(values: (V | undefined)[]) => values.filter((value): value is V => value !== undefined);
-        const uniqueReadingIds = [...new Set(ids.readings)];
-        const [foundJobs, exact, variants, foundAssets, foundTechnicians, jobConflicts, assetConflicts, technicianConflicts] = await Promise.all([
-          Promise.all(ids.jobs.map((id) => jobs.get(id))),
-          Promise.all(uniqueReadingIds.map((id) => readings.get(id))),
-          // A merge's renamed copies "<id>~<hex>" sort right after "<id>~".
-          Promise.all(uniqueReadingIds.map((id) => readings.getAll(IDBKeyRange.bound(`${id}~`, `${id}~\uffff`)))),
-          Promise.all(ids.assets.map((id) => assets.get(id))),
-          Promise.all(ids.technicians.map((id) => technicians.get(id))),
-          Promise.all(ids.jobs.map((id) => conflicts.getAll(id))),
-          Promise.all(ids.assets.map((id) => recordConflicts.getAll(id))),
-          Promise.all(ids.technicians.map((id) => recordConflicts.getAll(id))),
+        const jobIds = new Set(ids.jobs);
+        const readingIds = new Set(ids.readings);
+        const assetIds = new Set(ids.assets);
+        const technicianIds = new Set(ids.technicians);
+        // A merge's renamed copy "<id>~<16 hex>" is wanted with its first id.
+        const wantedReading = (key: string) => readingIds.has(key) || (key.length > 17 && key.charCodeAt(key.length - 17) === 0x7e && readingIds.has(key.slice(0, -17)));
+        const [foundJobs, foundReadings, foundAssets, foundTechnicians, jobConflicts, recordConflicts] = await Promise.all([
+          heldRecords(tx.objectStore('jobs'), ids.jobs, (key) => jobIds.has(key)),
+          heldRecords(tx.objectStore('readings'), [...readingIds], wantedReading, (id) => IDBKeyRange.bound(`${id}~`, `${id}~\uffff`)),
+          heldRecords(tx.objectStore('assets'), ids.assets, (key) => assetIds.has(key)),
+          heldRecords(tx.objectStore('technicians'), ids.technicians, (key) => technicianIds.has(key)),
+          // Conflicts are few: all of them, kept when they are about these records.
+          tx.objectStore('conflicts').getAll(),
+          tx.objectStore('recordConflicts').getAll(),
         ]);
-        const byId = new Map<string, Reading>();
-        for (const reading of [...present(exact), ...variants.flat()]) byId.set(reading.id, toFileReading(reading));
         return {
-          jobs: present(foundJobs),
-          readings: [...byId.values()],
-          assets: present(foundAssets),
-          technicians: present(foundTechnicians),
-          conflicts: jobConflicts.flat(),
-          recordConflicts: [
-            ...assetConflicts.flat().filter((conflict) => conflict.record === 'asset'),
-            ...technicianConflicts.flat().filter((conflict) => conflict.record === 'technician'),
-          ],
+          jobs: foundJobs,
+          readings: foundReadings.map(toFileReading),
+          assets: foundAssets,
+          technicians: foundTechnicians,
+          conflicts: jobConflicts.filter((conflict) => jobIds.has(conflict.jobId)),
+          recordConflicts: recordConflicts.filter((conflict) => (conflict.record === 'asset' ? assetIds : technicianIds).has(conflict.id)),
         };
       };
       const write = async (changes: JobPayload, onWritten?: (done: number, total: number) => void): Promise<void> => {

@@ -4,10 +4,24 @@
  * Node only.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
+import { existsSync } from 'node:fs';
 import { createServer } from 'node:net';
+import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
-const ROOT = fileURLToPath(new URL('../..', import.meta.url));
+/**
+ * The repository root: the nearest folder above this module holding vite.config.ts. Found by
+ * looking, not by a fixed "../..", because the bench runs this module bundled into
+ * node_modules/.cache/….
+ */
+function findRoot(from: string): string {
+  for (let dir = dirname(from); ; dir = dirname(dir)) {
+    if (existsSync(join(dir, 'vite.config.ts')) && existsSync(join(dir, 'package.json'))) return `${dir}/`;
+    if (dirname(dir) === dir) throw new Error(`no vite.config.ts above ${from}`);
+  }
+}
+
+const ROOT = findRoot(fileURLToPath(import.meta.url));
 
 /**
  * Headless Debian Chromium as root, with its background networking off (the machine reaches no

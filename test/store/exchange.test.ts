@@ -1,11 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { emptyPayload, type JobPayload } from '../../src/exchange/format';
-import { importJobFiles } from '../../src/exchange/import';
+import { importJobFiles, MemoryImportStore } from '../../src/exchange/import';
+import { mergePayloads } from '../../src/exchange/merge';
 import { sortPayload } from '../../src/exchange/order';
-import { writeJobFile } from '../../src/exchange/write';
+import { selectForExport, writeJobFile } from '../../src/exchange/write';
 import { idbImportStore, loadExchangePayload } from '../../src/store/exchange';
 import type { Database } from '../../src/store/schema';
-import { smallPayload, T3 } from '../exchange/fixtures';
+import { demoPayload, smallPayload, T3 } from '../exchange/fixtures';
 import { openFresh } from './fixtures';
 
 const NOW = '2026-12-01T12:00:00.000Z';
@@ -55,6 +56,41 @@ describe('the IndexedDB import store', () => {
     expect(saving.at(-1)).toEqual([records, records]);
     expect(saving.map(([done]) => done)).toEqual([...saving.map(([done]) => done)].sort((a, b) => a - b));
     db.close();
+  });
+
+  it('finds what the store holds of a file the same whether the store is much larger, about as large, or mostly the file', async () => {
+    // The store: the demo shop, plus the small payload with a renamed reading and a conflict
+    // already in it. The files: one job (store far larger), a few dozen jobs (about as large),
+    // everything again (most of the store). Each must merge as the memory store merges it.
+    const shop = demoPayload(60, 4);
+    const small = smallPayload();
+    const changed = copy(small);
+    const later = '2026-03-05T08:00:00.000Z';
+    changed.jobs[0]!.customer = 'Foxmere Bakery Ltd';
+    changed.jobs[0]!.edits.customer = later;
+    changed.jobs[0]!.updatedAt = later;
+    changed.readings[0]!.value = 13.9;
+    changed.readings[0]!.text = '13.9';
+    const setup = [
+      { name: 'shop.json', content: await fileOf(shop) },
+      { name: 'a.json', content: await fileOf(small) },
+      { name: 'b.json', content: await fileOf(changed, later) },
+    ];
+    const files = [
+      await fileOf(selectForExport(changed, { kind: 'jobs', jobIds: ['job-a'] }), later),
+      await fileOf(selectForExport(shop, { kind: 'jobs', jobIds: shop.jobs.slice(0, 25).map((job) => job.id) })),
+      await fileOf(mergePayloads([{ name: 'x', at: T3, payload: shop }, { name: 'y', at: later, payload: changed }]).payload, later),
+    ];
+    for (const [i, text] of files.entries()) {
+      const db = await openFresh();
+      const memory = new MemoryImportStore();
+      for (const store of [idbImportStore(db), memory]) await importJobFiles(setup, store, { storeAt: NOW });
+      const [viaDb] = await importJobFiles([{ name: 'next.json', content: text }], idbImportStore(db), { storeAt: NOW });
+      const [viaMemory] = await importJobFiles([{ name: 'next.json', content: text }], memory, { storeAt: NOW });
+      expect(viaDb, `file ${i}`).toEqual(viaMemory);
+      expect(sortPayload(await loadExchangePayload(db)), `file ${i}`).toEqual(sortPayload(memory.snapshot()));
+      db.close();
+    }
   });
 
   it('changes nothing when the same file is imported twice', async () => {
