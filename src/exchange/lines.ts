@@ -78,6 +78,34 @@ export const READING_COLUMNS: readonly Column[] = [
   column('note', isTextUpTo(LIMITS.longTextChars)),
 ];
 
+const REQUIRED_COLUMNS = READING_COLUMNS.filter((column) => !column.optional);
+const OPTIONAL_COLUMNS = READING_COLUMNS.filter((column) => column.optional);
+
+/**
+ * A quick yes for a reading record as the app stores them (every member known and of its type,
+ * the usual ids): the writer checks a hundred thousand of them before an export. No means "ask
+ * the full check" (schema.ts), which decides and words the problem.
+ */
+export function isPlainReading(value: unknown): boolean {
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) return false;
+  const reading = value as Record<string, unknown>;
+  if (!isPlainId(reading.jobId) || !Object.hasOwn(reading, 'jobId')) return false;
+  let present = 1;
+  for (const { name, quick } of REQUIRED_COLUMNS) {
+    if (!Object.hasOwn(reading, name) || !quick(reading[name])) return false;
+    present += 1;
+  }
+  for (const { name, quick } of OPTIONAL_COLUMNS) {
+    if (!Object.hasOwn(reading, name)) continue;
+    if (!quick(reading[name])) return false;
+    present += 1;
+  }
+  // No member beyond the known ones.
+  let members = 0;
+  for (const key in reading) if (Object.hasOwn(reading, key)) members += 1;
+  return members === present;
+}
+
 /** Every member a reading table may have: the columns and `job`. */
 const TABLE_KEYS: ReadonlySet<string> = new Set(['job', ...READING_COLUMNS.map((c) => c.name)]);
 

@@ -6,6 +6,7 @@
  */
 import { LIMITS, type JobPayload } from './format';
 import { IdTable } from './id-table';
+import { isPlainReading } from './lines';
 import {
   Checker,
   checkAsset,
@@ -37,10 +38,17 @@ export const RECORD_LISTS: Record<PayloadKey, { check: Check; label: string; max
 /**
  * Checks the records of one list, item by item, with the record's id and job (read from the raw
  * item, for messages only) set on the checker. `firstIndex` numbers the items in messages
- * ("payload.jobs[12]"): a version-2 file hands its lists over a line at a time. Returns the
- * checked items (copies when the checker copies), or undefined when any was refused.
+ * ("payload.jobs[12]"): a version-2 file hands its lists over a line at a time. `quick`, when
+ * given, passes the usual good record without the full check (which still words any problem).
+ * Returns the checked items (copies when the checker copies), or undefined when any was refused.
  */
-export function checkRecordList(list: readonly unknown[], key: PayloadKey, c: Checker, firstIndex = 0): unknown[] | undefined {
+export function checkRecordList(
+  list: readonly unknown[],
+  key: PayloadKey,
+  c: Checker,
+  firstIndex = 0,
+  quick?: (item: unknown) => boolean,
+): unknown[] | undefined {
   const { check, label, jobIdKey } = RECORD_LISTS[key];
   const out: unknown[] | undefined = c.copy ? new Array(list.length) : undefined;
   let ok = true;
@@ -49,6 +57,8 @@ export function checkRecordList(list: readonly unknown[], key: PayloadKey, c: Ch
   c.enter(key);
   for (let i = 0; i < list.length; i++) {
     const item: unknown = list[i];
+    // A quick yes stands for the full check's, when no copy is wanted.
+    if (out === undefined && quick?.(item) === true) continue;
     const raw = typeof item === 'object' && item !== null ? (item as Record<string, unknown>) : undefined;
     const itemId = raw !== undefined && Object.hasOwn(raw, 'id') ? raw.id : undefined;
     const jobId = raw !== undefined && jobIdKey !== undefined && Object.hasOwn(raw, jobIdKey) ? raw[jobIdKey] : undefined;
@@ -105,7 +115,7 @@ export function checkPayload(value: unknown, c: Checker): JobPayload | undefined
       ok = false;
       continue;
     }
-    const checked = checkRecordList(list, key, c);
+    const checked = checkRecordList(list, key, c, 0, key === 'readings' ? isPlainReading : undefined);
     if (checked === undefined) ok = false;
     else lists[key] = checked;
   }

@@ -10,7 +10,7 @@ import { jobDate, type IsoTime, type Job, type Reading } from '../model/job';
 import { decodeUtf8Strict, encodeAsciiLine as encodeAsciiText, encodeUtf8 } from './canonical';
 import { PieceHasher } from './digest';
 import { FORMAT_ID, SCHEMA_VERSION, type ExchangeProblem, type ExportedBy, type JobFile, type JobPayload } from './format';
-import { BLOCK_KINDS, buildReadingTable, TARGET_LINE_CHARS, type RecordCounts } from './lines';
+import { BLOCK_KINDS, buildReadingTable, isPlainReading, TARGET_LINE_CHARS, type RecordCounts } from './lines';
 import { sortPayload } from './order';
 import { formatProblem } from './parse';
 import { checkRecordList, checkReferences, RECORD_LISTS, type PayloadKey } from './payload';
@@ -65,7 +65,8 @@ function checkForExport(payload: JobPayload, exportedAt: IsoTime, exportedBy: Ex
       copying.leave();
       continue;
     }
-    checked[kind] = checkRecordList(list, kind, kind === 'readings' ? reading : copying);
+    // Readings are written as columns, field by field, so they need no sorted copy.
+    checked[kind] = kind === 'readings' ? checkRecordList(list, kind, reading, 0, isPlainReading) : checkRecordList(list, kind, copying);
   }
   const problems = () => [...copying.problems, ...reading.problems];
   if (copying.problemCount + reading.problemCount > 0 || at === INVALID || by === INVALID) throw new ExportError(problems());
