@@ -41,6 +41,18 @@ export function encodeUtf8(text: string): Uint8Array {
   return encoder.encode(text);
 }
 
+/** Byte arrays one after another in one array (the one array itself when there is just one). */
+export function concatBytes(chunks: readonly Uint8Array[]): Uint8Array {
+  if (chunks.length === 1) return chunks[0]!;
+  const out = new Uint8Array(chunks.reduce((sum, chunk) => sum + chunk.byteLength, 0));
+  let at = 0;
+  for (const chunk of chunks) {
+    out.set(chunk, at);
+    at += chunk.byteLength;
+  }
+  return out;
+}
+
 /** The bytes of ASCII text followed by one line feed (the caller knows the text is ASCII). */
 export function encodeAsciiLine(text: string): Uint8Array {
   encoder ??= new web.TextEncoder();

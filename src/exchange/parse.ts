@@ -7,7 +7,7 @@
  * version-1 file (one JSON object) is gathered and read whole at the end (read-v1.ts).
  * `readJobFile` is the same for bytes or text already in memory.
  */
-import { decodeUtf8Strict, encodeUtf8 } from './canonical';
+import { concatBytes, decodeUtf8Strict, encodeUtf8 } from './canonical';
 import { FORMAT_ID, LIMITS, type ExchangeProblem } from './format';
 import { readVersion1 } from './read-v1';
 import { LINE_LIMIT_MESSAGE, LinesReader } from './read-v2';
@@ -20,17 +20,6 @@ export { digestText } from './read-v1';
 /** A version-2 head is a few hundred bytes; a first line longer than this is not one. */
 const HEAD_PROBE_BYTES = 65_536;
 const BOM = [0xef, 0xbb, 0xbf];
-
-function concat(chunks: readonly Uint8Array[], length: number): Uint8Array {
-  if (chunks.length === 1) return chunks[0]!;
-  const out = new Uint8Array(length);
-  let at = 0;
-  for (const chunk of chunks) {
-    out.set(chunk, at);
-    at += chunk.byteLength;
-  }
-  return out;
-}
 
 /** The first line's JSON value, or undefined when it is not UTF-8 JSON. */
 function parseFirstLine(line: Uint8Array): { value: unknown } | undefined {
@@ -103,7 +92,7 @@ export class JobFileReader {
 
   /** In 'start': once the first line is complete (or cannot be a head), choose the version. */
   private detect(ended: boolean): void {
-    const bytes = concat(this.chunks, this.pending);
+    const bytes = concatBytes(this.chunks);
     // A byte-order mark is skipped: it is not part of the file's text (nor of its digest).
     const bomBytes = Math.min(bytes.length, BOM.length);
     let isBom = true;
@@ -158,7 +147,7 @@ export class JobFileReader {
       let line = chunk.subarray(at, lf);
       if (this.chunks.length > 0) {
         this.chunks.push(line);
-        line = concat(this.chunks, this.pending + line.byteLength);
+        line = concatBytes(this.chunks);
         this.chunks = [];
         this.pending = 0;
       }
@@ -177,13 +166,13 @@ export class JobFileReader {
     if (this.mode === 'start') this.detect(true);
     if (this.mode === 'refused') return this.refusal!;
     if (this.mode === 'v1') {
-      const bytes = concat(this.chunks, this.pending);
+      const bytes = concatBytes(this.chunks);
       this.chunks = [];
       return readVersion1(bytes, this.name);
     }
     const lines = this.lines!;
     if (this.pending > 0) {
-      const last = concat(this.chunks, this.pending);
+      const last = concatBytes(this.chunks);
       this.chunks = [];
       this.pending = 0;
       lines.line(last, this.lineNumber + 1, true);

@@ -7,7 +7,7 @@
  * order, and cut into lines by size alone, so the same records always give the same bytes.
  */
 import { jobDate, type IsoTime, type Job, type Reading } from '../model/job';
-import { decodeUtf8Strict, encodeAsciiLine as encodeAsciiText, encodeUtf8 } from './canonical';
+import { concatBytes, decodeUtf8Strict, encodeAsciiLine as encodeAsciiText, encodeUtf8 } from './canonical';
 import { PieceHasher } from './digest';
 import { FORMAT_ID, SCHEMA_VERSION, type ExchangeProblem, type ExportedBy, type JobFile, type JobPayload } from './format';
 import { BLOCK_KINDS, buildReadingTable, isPlainReading, TARGET_LINE_CHARS, type RecordCounts } from './lines';
@@ -276,15 +276,7 @@ export async function buildJobFile(payload: JobPayload, options: WriteOptions): 
 }
 
 /** The parts of a built file as one array of bytes. */
-export function joinParts(parts: readonly Uint8Array[]): Uint8Array {
-  const out = new Uint8Array(parts.reduce((sum, part) => sum + part.byteLength, 0));
-  let at = 0;
-  for (const part of parts) {
-    out.set(part, at);
-    at += part.byteLength;
-  }
-  return out;
-}
+export const joinParts: (parts: readonly Uint8Array[]) => Uint8Array = concatBytes;
 
 /** The file's text for these records (see buildJobFile): for tests and small files. */
 export async function writeJobFile(payload: JobPayload, options: WriteOptions): Promise<string> {
