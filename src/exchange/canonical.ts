@@ -54,7 +54,7 @@ export function concatBytes(chunks: readonly Uint8Array[]): Uint8Array {
 }
 
 /** The bytes of ASCII text followed by one line feed (the caller knows the text is ASCII). */
-export function encodeAsciiLine(text: string): Uint8Array {
+export function asciiLineBytes(text: string): Uint8Array {
   encoder ??= new web.TextEncoder();
   const out = new Uint8Array(text.length + 1);
   encoder.encodeInto(text, out);

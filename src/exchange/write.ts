@@ -7,7 +7,7 @@
  * order, and cut into lines by size alone, so the same records always give the same bytes.
  */
 import { jobDate, type IsoTime, type Job, type Reading } from '../model/job';
-import { concatBytes, decodeUtf8Strict, encodeAsciiLine as encodeAsciiText, encodeUtf8 } from './canonical';
+import { asciiLineBytes, concatBytes, decodeUtf8Strict, encodeUtf8 } from './canonical';
 import { PieceHasher } from './digest';
 import { FORMAT_ID, SCHEMA_VERSION, type ExchangeProblem, type ExportedBy, type JobFile, type JobPayload } from './format';
 import { BLOCK_KINDS, buildReadingTable, isPlainReading, TARGET_LINE_CHARS, type RecordCounts } from './lines';
@@ -119,7 +119,7 @@ function nextNonAscii(bytes: Uint8Array, words: Uint32Array, from: number): numb
  * the ASCII between them copied in runs (five times faster than a loop over the characters).
  */
 export function encodeAsciiLine(line: string): Uint8Array {
-  if (!NON_ASCII.test(line)) return encodeAsciiText(line);
+  if (!NON_ASCII.test(line)) return asciiLineBytes(line);
   const encoded = encodeUtf8(line);
   const bytes = (encoded.byteOffset & 3) === 0 ? encoded : encoded.slice();
   const words = new Uint32Array(bytes.buffer, bytes.byteOffset, bytes.length >> 2);
