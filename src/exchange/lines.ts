@@ -113,12 +113,12 @@ const TABLE_KEYS: ReadonlySet<string> = new Set(['job', ...READING_COLUMNS.map((
 export type ReadingTable = { job: number[] } & { [K in Column['name']]?: unknown[] };
 
 /**
- * The readings[start, end) as a table. `jobIndex` gives each reading's job as its place in the
- * file (0 for the first job written). Optional columns no reading here uses are left out.
+ * The readings[start, end) as a table. `jobOf[k]` is reading k's job as its place in the file
+ * (0 for the first job written). Optional columns no reading here uses are left out.
  */
-export function buildReadingTable(readings: readonly Reading[], start: number, end: number, jobIndex: (reading: Reading) => number): ReadingTable {
+export function buildReadingTable(readings: readonly Reading[], start: number, end: number, jobOf: ArrayLike<number>): ReadingTable {
   const job: number[] = new Array(end - start);
-  for (let k = start; k < end; k++) job[k - start] = jobIndex(readings[k]!);
+  for (let k = start; k < end; k++) job[k - start] = jobOf[k]!;
   // Member order: id, job, then the other columns (JSON.stringify keeps insertion order).
   const ordered: Record<string, unknown[]> = {};
   for (const { name, optional } of READING_COLUMNS) {

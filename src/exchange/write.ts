@@ -204,7 +204,9 @@ function readingChars(reading: Reading): number {
 function jobAndReadingLines(jobs: readonly Job[], readings: readonly Reading[], out: string[]): void {
   const place = new Map<string, number>();
   jobs.forEach((job, i) => place.set(job.id, i));
-  const jobIndex = (reading: Reading) => place.get(reading.jobId)!;
+  // Each reading's job as its place among the jobs, looked up once.
+  const jobOf = new Int32Array(readings.length);
+  readings.forEach((reading, k) => (jobOf[k] = place.get(reading.jobId)!));
   let r = 0;
   let j = 0;
   while (j < jobs.length) {
@@ -220,13 +222,13 @@ function jobAndReadingLines(jobs: readonly Job[], readings: readonly Reading[], 
     // ...then their readings (sorted by job, so the next ones until a later job's).
     const lastJob = j - 1;
     const start = r;
-    while (r < readings.length && jobIndex(readings[r]!) <= lastJob) r++;
+    while (r < readings.length && jobOf[r]! <= lastJob) r++;
     let from = start;
     let chars = 0;
     for (let k = start; k < r; k++) {
       chars += readingChars(readings[k]!);
       if (chars >= TARGET_LINE_CHARS || k === r - 1) {
-        out.push(JSON.stringify({ readings: buildReadingTable(readings, from, k + 1, jobIndex) }));
+        out.push(JSON.stringify({ readings: buildReadingTable(readings, from, k + 1, jobOf) }));
         from = k + 1;
         chars = 0;
       }
